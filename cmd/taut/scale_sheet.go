@@ -1,0 +1,183 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"taut/monitor/instrument"
+	"taut/monitor/tension"
+)
+
+// scaleLowMargin flags suspiciously low tension: below 20 % of breaking load. An
+// engineering judgement, under the 24 % low end of the trade's range for short piano
+// scales (reference-values §4.1): such a string may be slack and buzz, drift more, or
+// be strung with the wrong gauge.
+const scaleLowMargin = 0.20
+
+// scaleCaution is shown whenever a margin is high (design.md "Cautions").
+const scaleCaution = `CAUTION: strings under tension store a lot of energy, and a breaking string can injure
+eyes and hands. Wear eye protection when bringing strings up to pitch, raise the pitch in
+stages, and follow the instrument maker's specification and local professional practice.
+These figures are estimates from the data in the config; they do not replace a qualified
+technician's judgement.`
+
+// Flags of one string on the scale sheet.
+const (
+	flagLow   = "low"
+	flagWarn  = "warn"
+	flagAlarm = "ALARM"
+)
+
+// sheetRow is one string on the scale sheet, in SI.
+type sheetRow struct {
+	ID             string  `json:"id"`
+	Note           string  `json:"note"`
+	Section        string  `json:"section"`
+	TargetHz       float64 `json:"target_hz"`
+	LengthM        float64 `json:"length_m"`
+	F0Hz           float64 `json:"f0_hz"`
+	FirstPartialHz float64 `json:"first_partial_hz"`
+	Construction   string  `json:"construction"`
+	MassPerMKg     float64 `json:"mass_per_m_kg"`
+	MassWeighed    bool    `json:"mass_weighed"`
+	TensionN       float64 `json:"tension_n"`
+	BreakingN      float64 `json:"breaking_n"`
+	Margin         float64 `json:"margin"`
+	Inharmonicity  float64 `json:"inharmonicity"`
+	BreakingHz     float64 `json:"breaking_hz"`
+	Flag           string  `json:"flag"`
+	StrengthBasis  string  `json:"strength_basis"`
+}
+
+// sectionTotal sums one section, or the whole instrument.
+type sectionTotal struct {
+	Section   string  `json:"section"`
+	Strings   int     `json:"strings"`
+	TensionN  float64 `json:"tension_n"`
+	MinMargin float64 `json:"min_margin"`
+	MaxMargin float64 `json:"max_margin"`
+}
+
+// sheet is the whole scale sheet; its JSON form is the stable --json output.
+type sheet struct {
+	Instrument    string         `json:"instrument"`
+	Config        string         `json:"config"`
+	ReferenceHz   float64        `json:"reference_hz"`
+	Strings       []sheetRow     `json:"strings"`
+	Sections      []sectionTotal `json:"sections"`
+	TotalTensionN float64        `json:"total_tension_n"`
+	MinMargin     float64        `json:"min_margin"`
+	MaxMargin     float64        `json:"max_margin"`
+	MarginWarn    float64        `json:"margin_warn"`
+	MarginAlarm   float64        `json:"margin_alarm"`
+	MarginLow     float64        `json:"margin_low"`
+	Bases         []materialBase `json:"strength_basis"`
+	Caution       string         `json:"caution,omitempty"`
+}
+
+// materialBase states the strength basis of one core material in use.
+type materialBase struct {
+	Material string `json:"material"`
+	Basis    string `json:"basis"`
+}
+
+func newSheet(cfg *instrument.Config) *sheet {
+	in := &cfg.Instrument
+	sh := &sheet{
+		Instrument: in.Name, Config: cfg.Path, ReferenceHz: in.ReferenceHz,
+		MarginWarn: cfg.Listen.MarginWarn, MarginAlarm: cfg.Listen.MarginAlarm, MarginLow: scaleLowMargin,
+	}
+	seen := map[string]bool{}
+	for i := range in.Strings {
+		r := sheetRowOf(&in.Strings[i], cfg.Listen)
+		sh.Strings = append(sh.Strings, r)
+		if m := in.Strings[i].Phys.Core.Material; !seen[m.Name] {
+			seen[m.Name] = true
+			sh.Bases = append(sh.Bases, materialBase{m.Name, m.Basis})
+		}
+		if r.Flag == flagWarn || r.Flag == flagAlarm {
+			sh.Caution = scaleCaution
+		}
+	}
+	all := sumSection("all", sh.Strings)
+	sh.TotalTensionN, sh.MinMargin, sh.MaxMargin = all.TensionN, all.MinMargin, all.MaxMargin
+	for _, name := range sectionOrder(sh.Strings) {
+		var rows []sheetRow
+		for _, r := range sh.Strings {
+			if r.Section == name {
+				rows = append(rows, r)
+			}
+		}
+		sh.Sections = append(sh.Sections, sumSection(name, rows))
+	}
+	return sh
+}
+
+func sheetRowOf(s *instrument.String, l instrument.Listen) sheetRow {
+	p := &s.Phys
+	t := p.Tension(s.TargetHz)
+	r := sheetRow{
+		ID: s.ID, Note: s.Note, Section: s.Section, TargetHz: s.TargetHz, LengthM: p.LengthM,
+		F0Hz: s.TargetHz, FirstPartialHz: p.FirstPartialHz(s.TargetHz),
+		Construction: construction(p), MassPerMKg: p.MassPerLength(), MassWeighed: p.MeasuredMuKgM > 0,
+		TensionN: t, BreakingN: p.BreakingLoad(), Margin: p.Margin(t), Inharmonicity: p.Inharmonicity(t),
+		BreakingHz: p.BreakingHz(), StrengthBasis: p.Core.Material.Basis,
+	}
+	switch {
+	case r.Margin > l.MarginAlarm:
+		r.Flag = flagAlarm
+	case r.Margin > l.MarginWarn:
+		r.Flag = flagWarn
+	case r.Margin < scaleLowMargin:
+		r.Flag = flagLow
+	}
+	return r
+}
+
+// sectionOrder lists sections in the order they first appear (lowest string first).
+func sectionOrder(rows []sheetRow) []string {
+	var names []string
+	seen := map[string]bool{}
+	for _, r := range rows {
+		if !seen[r.Section] {
+			seen[r.Section] = true
+			names = append(names, r.Section)
+		}
+	}
+	return names
+}
+
+func sumSection(name string, rows []sheetRow) sectionTotal {
+	t := sectionTotal{Section: name, Strings: len(rows), MinMargin: math.Inf(1), MaxMargin: math.Inf(-1)}
+	for _, r := range rows {
+		t.TensionN += r.TensionN
+		t.MinMargin = math.Min(t.MinMargin, r.Margin)
+		t.MaxMargin = math.Max(t.MaxMargin, r.Margin)
+	}
+	if len(rows) == 0 {
+		t.MinMargin, t.MaxMargin = 0, 0
+	}
+	return t
+}
+
+// shortNames are how a material reads in a construction ("steel 1.50 + Cu 1.00 mm").
+var shortNames = map[string]string{
+	"music_wire": "steel", "phosphor_bronze": "bronze", "copper": "Cu", "fluorocarbon": "fluorocarbon",
+}
+
+func materialLabel(m *tension.Material, wound bool) string {
+	if s, ok := shortNames[m.Name]; ok && (wound || m.Name != "music_wire") {
+		return s
+	}
+	return strings.ReplaceAll(m.Name, "_", " ")
+}
+
+// construction describes a string, e.g. "music wire 1.05 mm" or "steel 1.50 + Cu 1.00 mm".
+func construction(p *tension.String) string {
+	parts := []string{fmt.Sprintf("%s %.2f", materialLabel(p.Core.Material, p.Wound()), tension.ToMM(p.Core.DiameterM))}
+	for _, w := range p.Wraps {
+		parts = append(parts, fmt.Sprintf("%s %.2f", materialLabel(w.Material, true), tension.ToMM(w.DiameterM)))
+	}
+	return strings.Join(parts, " + ") + " mm"
+}

@@ -1,0 +1,202 @@
+package instrument
+
+import (
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path"
+	"path/filepath"
+	"regexp"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+)
+
+// rawFile mirrors the TOML file. Leaf values are decoded as `any` so that a value of
+// the wrong type becomes one of many reported errors instead of stopping the decoder;
+// the converters in value.go check them. Strings are decoded as maps because their
+// keys are the same columns a CSV table has (columns.go).
+type rawFile struct {
+	Name        any                    `toml:"name"`
+	ReferenceHz any                    `toml:"reference_hz"`
+	StringTable any                    `toml:"string_table"`
+	Materials   map[string]rawMaterial `toml:"materials"`
+	String      []map[string]any       `toml:"string"`
+	Listen      rawListen              `toml:"listen"`
+	Journal     rawJournal             `toml:"journal"`
+	HTTP        rawHTTP                `toml:"http"`
+	Audio       rawAudio               `toml:"audio"`
+	Lamps       rawLamps               `toml:"lamps"`
+	Exciter     rawExciter             `toml:"exciter"`
+}
+
+// Load reads and validates the config file at path. A CSV string table it names is
+// read relative to the config file's directory.
+func Load(name string) (*Config, error) {
+	dir, base := filepath.Split(name)
+	if dir == "" {
+		dir = "."
+	}
+	cfg, err := parse(os.DirFS(dir), base, dir)
+	if cfg != nil {
+		cfg.Path = name
+	}
+	return cfg, err
+}
+
+// Parse reads and validates the config file name inside fsys; a CSV string table it
+// names is resolved relative to name inside fsys. Any problem in the file comes back
+// as *Errors listing all of them; a file that cannot be read is a plain error.
+func Parse(fsys fs.FS, name string) (*Config, error) {
+	return parse(fsys, name, "")
+}
+
+// parse reads name inside fsys; dir, when set, is the OS directory of fsys, used
+// to name files in errors the way the user gave them.
+func parse(fsys fs.FS, name, dir string) (*Config, error) {
+	data, err := fs.ReadFile(fsys, name)
+	if err != nil {
+		return nil, fmt.Errorf("instrument: read config: %w", err)
+	}
+	p := &parser{fsys: fsys, dir: dir, file: name, loc: newLocator(string(data)), pinAt: map[string]pos{}}
+	var raw rawFile
+	md, err := toml.Decode(string(data), &raw)
+	if err != nil {
+		p.c.add(pos{file: p.display(name), line: tomlErrLine(err)}, nil, "%s", tomlErrText(err))
+		return nil, p.c.err()
+	}
+	p.undecoded(md.Undecoded())
+	cfg := p.build(&raw)
+	if len(p.c.list) > 0 {
+		for _, fe := range p.c.list {
+			fe.File = p.display(fe.File)
+		}
+		return nil, p.c.err()
+	}
+	cfg.Path = name
+	return cfg, nil
+}
+
+// parser holds the state of one Parse call.
+type parser struct {
+	fsys fs.FS
+	dir  string // OS directory of fsys for messages, "" when unknown
+	file string
+	loc  *locator
+	c    collector
+
+	pinAt map[string]pos // where each string's exciter_pin was written, by string id
+}
+
+// at returns the position of a TOML key path such as "listen.margin_warn".
+func (p *parser) at(path string) pos {
+	return pos{file: p.file, line: p.loc.line(path), field: path}
+}
+
+func (p *parser) build(raw *rawFile) *Config {
+	cfg := &Config{}
+	in := &cfg.Instrument
+	in.Name = p.c.optString(p.at("name"), raw.Name, "")
+	if strings.TrimSpace(in.Name) == "" {
+		p.c.add(p.at("name"), raw.Name, "want the instrument's name, e.g. name = \"workshop harp\"")
+	}
+	in.ReferenceHz = p.c.optNumber(p.at("reference_hz"), raw.ReferenceHz, 440,
+		"A4 in Hz between 350 and 500 (default 440, ISO 16)", between(350, 500))
+	in.Materials = p.materials(raw.Materials)
+	in.Strings = p.strings(raw, in)
+	cfg.Listen = p.listen(&raw.Listen)
+	cfg.Journal = p.journal(&raw.Journal)
+	cfg.HTTP = p.http(&raw.HTTP)
+	cfg.Audio = p.audio(&raw.Audio)
+	cfg.Lamps = p.lamps(&raw.Lamps)
+	cfg.Exciter = p.exciter(&raw.Exciter, in.Strings)
+	p.checkPins(cfg)
+	sort.SliceStable(p.c.list, func(i, j int) bool {
+		a, b := p.c.list[i], p.c.list[j]
+		if a.File != b.File {
+			return a.File == p.file // the TOML file first, then its table
+		}
+		return a.Line < b.Line
+	})
+	return cfg
+}
+
+func between(lo, hi float64) func(float64) bool {
+	return func(f float64) bool { return f >= lo && f <= hi }
+}
+
+func positive(f float64) bool { return f > 0 }
+
+// knownKeys lists the keys accepted in each table, for unknown-key suggestions.
+var knownKeys = map[string][]string{
+	"":          {"name", "reference_hz", "string_table", "materials", "string", "listen", "journal", "http", "audio", "lamps", "exciter"},
+	"materials": {"like", "density_kg_m3", "young_gpa", "strength_mpa", "basis"},
+	"listen": {"steady_cents_per_hour", "tolerance_cents", "margin_warn", "margin_alarm", "jump_cents",
+		"partial_shift", "rate_window", "quiet_after", "match_cents", "ambiguous_cents"},
+	"journal":    {"dir", "fsync_interval", "segment_mb"},
+	"http":       {"listen"},
+	"audio":      {"input", "files", "device", "format", "rate_hz", "channels", "speed"},
+	"lamps":      {"required", "lamp"},
+	"lamps.lamp": {"name", "pin", "shows", "blink"},
+	"exciter":    {"enabled", "interval", "pulse", "max_pulse", "listen", "quiet_hours"},
+}
+
+// undecoded reports every key the decoder did not use.
+func (p *parser) undecoded(keys []toml.Key) {
+	seen := map[string]int{}
+	for _, k := range keys {
+		table := strings.Join(k[:len(k)-1], ".")
+		if len(k) >= 2 && k[0] == "materials" {
+			table = "materials" // [materials.NAME] all share one key set
+		}
+		plain := strings.Join(k, ".")
+		line := p.loc.nth(plain, seen[plain])
+		seen[plain]++
+		where := "the top level"
+		if table != "" {
+			where = "[" + table + "]"
+		}
+		p.c.add(pos{file: p.file, line: line, field: plain}, nil,
+			"unknown key in %s%s", where, suggest(k[len(k)-1], knownKeys[table]))
+	}
+}
+
+var lineRE = regexp.MustCompile(`line (\d+)`)
+
+func tomlErrLine(err error) int {
+	var pe toml.ParseError
+	if errors.As(err, &pe) {
+		return pe.Position.Line
+	}
+	if m := lineRE.FindStringSubmatch(err.Error()); m != nil {
+		n, _ := strconv.Atoi(m[1])
+		return n
+	}
+	return 0
+}
+
+// tomlErrText is the decoder's message without its own "toml: line N" prefix.
+func tomlErrText(err error) string {
+	var pe toml.ParseError
+	if errors.As(err, &pe) {
+		return "TOML syntax: " + pe.Message + "; want valid TOML"
+	}
+	msg := strings.TrimPrefix(err.Error(), "toml: ")
+	return "TOML structure: " + msg + "; want the layout of the example configs"
+}
+
+// display names a file of fsys as the user knows it.
+func (p *parser) display(file string) string {
+	if p.dir == "" {
+		return file
+	}
+	return filepath.Join(p.dir, file)
+}
+
+// sibling resolves a file named in the config relative to the config's directory.
+func (p *parser) sibling(name string) string {
+	return path.Join(path.Dir(p.file), name)
+}

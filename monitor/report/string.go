@@ -1,0 +1,279 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"taut/monitor"
+	"taut/monitor/instrument"
+	"taut/monitor/settle"
+)
+
+// Problem flags: the injected-fault kinds the report must surface. Anything else a
+// string shows is a warning, not a flag.
+const (
+	FlagMargin   = "margin"   // tension over the alarm share of breaking load
+	FlagSlip     = "slip"     // a sudden drop that is not creep (slipped pin, bearing point)
+	FlagPartials = "partials" // partials shifted against the string's history
+)
+
+// Warnings: worth a look, not a fault.
+const (
+	WarnMargin    = "margin-warn" // over the warning share of breaking load
+	WarnOffTarget = "off-target"  // further from target than the tolerance
+	WarnSettling  = "settling"    // drifting faster than the steady threshold
+	WarnOutlier   = "outlier"     // single readings off the trend were left out
+	WarnNotHeard  = "not-heard"   // in the config, never heard
+	WarnUnknown   = "not-in-config"
+)
+
+// Attention classes, most urgent first.
+const (
+	ClassAlarm = iota + 1
+	ClassPitch
+	ClassSettling
+	ClassFine
+)
+
+// String is one string's part of the report.
+type String struct {
+	ID, Note, Section string
+	TargetHz          float64
+	Wound, Bass       bool
+	InConfig          bool
+	BreakingN         float64 // from the config; 0 without one
+	Basis             string  // strength basis of the margin
+
+	Readings    int
+	State       monitor.State // after the last entry about this string
+	StateReason string
+	Points      []settle.Point
+	Analysis    settle.Analysis
+	Analysed    bool
+	TensionN    float64 // latest reading
+	Margin      float64 // latest reading
+	MaxMargin   float64 // highest over the night
+	BEarly      float64 // median fitted B of the first quarter of readings
+	BLate       float64 // median fitted B of the last quarter
+
+	Flags    []string
+	Warnings []string
+	Reasons  []string // sentences for people, most important first
+	Class    int      // attention class
+	Rank     int      // 1 = look at first
+
+	states    []monitor.Entry
+	alarms    map[string]alarmSeen
+	firstSeen int
+	hz        []float64
+	bs        []float64
+	lastSeq   uint64
+}
+
+type alarmSeen struct {
+	hours float64
+	entry monitor.Entry
+}
+
+func (s *String) setConfig(cs *instrument.String) {
+	s.InConfig = true
+	s.Note, s.Section, s.TargetHz = cs.Note, cs.Section, cs.TargetHz
+	s.Wound = cs.Phys.Wound()
+	s.Bass = s.Wound || isBassSection(cs.Section)
+	if cs.Phys.Core.Material != nil && cs.Phys.Core.DiameterM > 0 {
+		s.BreakingN = cs.Phys.BreakingLoad()
+		s.Basis = cs.Phys.Core.Material.Basis
+	}
+}
+
+func (s *String) add(e monitor.Entry, hours float64) {
+	s.Readings++
+	s.Points = append(s.Points, settle.Point{Hours: hours, Cents: e.Cents})
+	if e.F0Hz > 0 {
+		s.hz = append(s.hz, e.F0Hz)
+	}
+	s.bs = append(s.bs, e.Inharmonicity)
+	s.TensionN, s.Margin = e.TensionN, e.Margin
+	s.MaxMargin = math.Max(s.MaxMargin, e.Margin)
+	s.noteState(e, hours)
+}
+
+// noteState keeps the state of the latest entry and remembers every alarm cause seen.
+func (s *String) noteState(e monitor.Entry, hours float64) {
+	if e.Seq >= s.lastSeq {
+		s.lastSeq, s.State, s.StateReason = e.Seq, e.State, e.Reason
+	}
+	if e.State != monitor.Alarm {
+		return
+	}
+	if s.alarms == nil {
+		s.alarms = map[string]alarmSeen{}
+	}
+	for _, why := range strings.Split(e.Reason, ",") {
+		if _, ok := s.alarms[why]; !ok && why != "" {
+			s.alarms[why] = alarmSeen{hours: hours, entry: e}
+		}
+	}
+}
+
+func (s *String) medianHz() float64 {
+	if len(s.hz) == 0 {
+		return math.Inf(1)
+	}
+	return medianOf(s.hz)
+}
+
+// analyse runs the settling analysis and sets flags, warnings, reasons and class.
+func (s *String) analyse(l Limits) {
+	for _, e := range s.states {
+		s.noteState(e, math.NaN())
+	}
+	if !s.InConfig && len(s.hz) > 0 {
+		s.Bass = s.medianHz() < 131 // below C3: treat as bass for the trade share
+	}
+	if len(s.Points) > 0 {
+		an, err := settle.Analyze(s.Points, settleOptions(l, s.Bass))
+		s.Analysis, s.Analysed = an, err == nil
+	}
+	s.BEarly, s.BLate = quarterMedians(s.bs)
+	s.judge(l)
+}
+
+// quarterMedians returns the median of the first and of the last quarter of xs
+// (at least one value each), ignoring zeros (no B fitted).
+func quarterMedians(xs []float64) (early, late float64) {
+	var v []float64
+	for _, x := range xs {
+		if x > 0 {
+			v = append(v, x)
+		}
+	}
+	if len(v) == 0 {
+		return math.NaN(), math.NaN()
+	}
+	q := max(len(v)/4, 1)
+	return medianOf(v[:q]), medianOf(v[len(v)-q:])
+}
+
+func (s *String) flag(f, reason string) {
+	s.Flags = append(s.Flags, f)
+	s.Reasons = append(s.Reasons, reason)
+}
+
+func (s *String) warn(w, reason string) {
+	s.Warnings = append(s.Warnings, w)
+	if reason != "" {
+		s.Reasons = append(s.Reasons, reason)
+	}
+}
+
+// judge decides flags and warnings. Flags: margin over the alarm share (measured or
+// alarmed by the listener), a slip (a step found by the analysis or a jump alarm of
+// the listener), a partial shift (alarmed by the listener).
+func (s *String) judge(l Limits) {
+	s.judgeMargin(l)
+	s.judgeSlip()
+	s.judgePartials()
+	if !s.InConfig {
+		s.warn(WarnUnknown, "heard but not in the config: no target or string data")
+	}
+	if s.Readings == 0 {
+		s.warn(WarnNotHeard, "never heard during the night")
+		s.Class = ClassFine
+		return
+	}
+	s.judgePitch(l)
+}
+
+func (s *String) judgeMargin(l Limits) {
+	basis := s.Basis
+	if basis == "" {
+		basis = "basis as recorded by the listener"
+	}
+	_, alarmed := s.alarms["margin"]
+	switch {
+	case s.MaxMargin > l.MarginAlarm || alarmed:
+		s.flag(FlagMargin, fmt.Sprintf("tension reached %.0f %% of breaking load (alarm above %.0f %%; %s)",
+			100*s.MaxMargin, 100*l.MarginAlarm, basis))
+	case s.MaxMargin > l.MarginWarn:
+		s.warn(WarnMargin, fmt.Sprintf("tension reached %.0f %% of breaking load (warning above %.0f %%; %s)",
+			100*s.MaxMargin, 100*l.MarginWarn, basis))
+	}
+}
+
+func (s *String) judgeSlip() {
+	var steps []string
+	for _, e := range s.Analysis.Events {
+		if e.Kind == settle.EventStep {
+			steps = append(steps, fmt.Sprintf("%.1f cents at hour %.1f", -e.Cents, e.Hours))
+		}
+	}
+	j, jumped := s.alarms["jump"]
+	switch {
+	case len(steps) > 0:
+		s.flag(FlagSlip, "sudden drop of "+strings.Join(steps, ", ")+
+			" that creep does not explain: a slipped pin, loop or bearing point?")
+	case jumped:
+		s.flag(FlagSlip, fmt.Sprintf("the listener raised a jump alarm at %s (%.1f cents from target)",
+			j.entry.Time.Format("15:04"), j.entry.Cents))
+	}
+	outliers := 0
+	for _, e := range s.Analysis.Events {
+		if e.Kind == settle.EventOutlier {
+			outliers++
+		}
+	}
+	if outliers > 0 {
+		s.warn(WarnOutlier, fmt.Sprintf("%d reading(s) off the trend left out of the fit", outliers))
+	}
+}
+
+func (s *String) judgePartials() {
+	p, ok := s.alarms["partials"]
+	if !ok {
+		return
+	}
+	msg := fmt.Sprintf("partials shifted (listener alarm at %s)", p.entry.Time.Format("15:04"))
+	if finite(s.BEarly) && finite(s.BLate) && s.BEarly > 0 {
+		msg += fmt.Sprintf(": inharmonicity B went from %.3g to %.3g (%+.0f %%)", s.BEarly, s.BLate,
+			100*(s.BLate/s.BEarly-1))
+	}
+	s.flag(FlagPartials, msg+"; a loosening winding or a loose bridge pin?")
+}
+
+// judgePitch sets the off-target and settling warnings and the attention class.
+func (s *String) judgePitch(l Limits) {
+	an := &s.Analysis
+	off := finite(an.CentsNow) && math.Abs(an.CentsNow) > l.ToleranceCents
+	if off {
+		s.warn(WarnOffTarget, fmt.Sprintf("%+.1f cents from target (tolerance ±%.0f)", an.CentsNow, l.ToleranceCents))
+	}
+	if !an.Steady {
+		s.warn(WarnSettling, settlingText(an))
+	}
+	switch {
+	case len(s.Flags) > 0:
+		s.Class = ClassAlarm
+	case off:
+		s.Class = ClassPitch
+	case !an.Steady:
+		s.Class = ClassSettling
+	default:
+		s.Class = ClassFine
+	}
+}
+
+func settlingText(an *settle.Analysis) string {
+	if !finite(an.RateNow) {
+		return "too few readings for a drift rate"
+	}
+	txt := fmt.Sprintf("still drifting %+.1f cents/hour", an.RateNow)
+	switch h := an.HoursToSteady; {
+	case math.IsInf(h, 1):
+		txt += "; not steady by its straight-line trend"
+	case finite(h):
+		txt += fmt.Sprintf("; steady in about %.0f h", math.Max(h, 1))
+	}
+	return txt
+}

@@ -1,0 +1,41 @@
+package monitor
+
+import (
+	"math"
+	"sync/atomic"
+	"time"
+)
+
+var posInf = math.Inf(1)
+
+// Stats counts what the monitor has seen since it started.
+type Stats struct {
+	FramesRead    int64     // frames delivered by the source
+	FramesDropped int64     // frames dropped because analysis fell behind
+	Gaps          int64     // gaps journaled (lost audio: overflow, drops, stalls); idle gaps are not counted
+	Notes         int64     // onsets analysed to a pitch
+	NoPitch       int64     // onsets that gave no usable pitch (silence, noise, clipping)
+	Readings      int64     // notes matched to a string
+	Unmatched     int64     // notes no string could claim
+	JournalErrors int64     // failed journal appends (the journal keeps and retries them)
+	LastFrame     time.Time // clock time when the source last delivered frames
+}
+
+// counters are the atomic form of Stats, written by the capture and analysis goroutines.
+type counters struct {
+	framesRead, framesDropped, gaps, notes, noPitch atomic.Int64
+	readings, unmatched, journalErrors              atomic.Int64
+	lastFrameNs                                     atomic.Int64
+}
+
+func (c *counters) snapshot() Stats {
+	s := Stats{
+		FramesRead: c.framesRead.Load(), FramesDropped: c.framesDropped.Load(), Gaps: c.gaps.Load(),
+		Notes: c.notes.Load(), NoPitch: c.noPitch.Load(), Readings: c.readings.Load(),
+		Unmatched: c.unmatched.Load(), JournalErrors: c.journalErrors.Load(),
+	}
+	if ns := c.lastFrameNs.Load(); ns != 0 {
+		s.LastFrame = time.Unix(0, ns)
+	}
+	return s
+}

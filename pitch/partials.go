@@ -1,0 +1,221 @@
+package pitch
+
+import (
+	"fmt"
+	"math"
+)
+
+const (
+	detectRatio = 30   // a partial's peak must exceed the mean local noise power this much (14.8 dB)
+	relFloor    = 1e-6 // … and be within 60 dB of the strongest partial found
+	searchWidth = 0.25 // search ±this share of f0 around each predicted partial
+	outlierZ    = 6.0  // drop a partial whose fit residual exceeds this many standard deviations
+	maxFixes    = 2    // octave corrections per note
+	semitone    = 1.0594630943592953
+)
+
+// partialEst is one detected partial with what the fit needs.
+type partialEst struct {
+	n               int
+	hz, db, snr, sd float64 // frequency, level, peak-to-floor power ratio, std. dev. (Hz)
+}
+
+// result is the outcome of the spectral stage.
+type result struct {
+	f0Hz, b, clarity float64
+	power            float64 // sum of the partials' squared amplitudes
+	used             int
+}
+
+// refine turns the YIN estimate into partials and a fitted f0 and B. It recomputes the
+// spectrum when the partial pattern shows that YIN was an octave (or a twelfth) off.
+func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
+	start := yinHz
+	for fix := 0; ; fix++ {
+		if err := a.spectrumFor(start); err != nil {
+			return err
+		}
+		a.track(start)
+		if len(a.parts) == 0 {
+			return ErrNoPitch
+		}
+		f0, b := a.fitPartials()
+		next, wrong := a.octaveCheck(f0, b, minHz, maxHz)
+		if wrong && fix < maxFixes {
+			start = next
+			continue
+		}
+		f1 := modelHz(1, f0, b)
+		if f1 < minHz/semitone || f1 > maxHz*semitone {
+			return fmt.Errorf("%w: %.4g Hz is outside the search range %.4g–%.4g Hz", ErrNoPitch, f1, minHz, maxHz)
+		}
+		res.f0Hz, res.b, res.used = f0, b, a.spec.l<<a.spec.level
+		res.clarity = a.clarity(f0)
+		res.power = 0
+		for _, p := range a.parts {
+			res.power += math.Pow(10, p.db/10)
+		}
+		if res.clarity < minClarity {
+			return ErrNoPitch
+		}
+		return nil
+	}
+}
+
+// track searches partials n = 1..MaxPartials near n·f0·sqrt(1+B·n²), refitting f0 and
+// B after every partial found so that the prediction follows the stretch of the series.
+func (a *Analyzer) track(startHz float64) {
+	sp := &a.spec
+	a.parts = a.parts[:0]
+	f0, b := startHz, 0.0
+	var strongest float64
+	for n := 1; n <= a.cfg.MaxPartials; n++ {
+		pred := modelHz(n, f0, b)
+		if pred > float64(sp.kmax)*sp.binHz {
+			break
+		}
+		k := sp.localMax(pred-searchWidth*f0, pred+searchWidth*f0)
+		if k < 0 {
+			continue
+		}
+		floor := a.localFloor(k, f0)
+		if sp.power[k] < detectRatio*floor || sp.power[k] < relFloor*max(strongest, sp.full) {
+			continue
+		}
+		hz, power := sp.peak(k)
+		strongest = math.Max(strongest, power)
+		snr := power / math.Max(floor, 1e-300)
+		a.parts = append(a.parts, partialEst{n: n, hz: hz, db: sp.amplitudeDB(power), snr: snr, sd: sp.binSigmaHz(snr)})
+		f0, b = a.predictModel(f0, b)
+	}
+}
+
+// predictModel updates the running f0 and B from the partials found so far. B is kept
+// non-negative for prediction only.
+func (a *Analyzer) predictModel(f0, b float64) (float64, float64) {
+	if len(a.parts) == 1 {
+		p := a.parts[0]
+		return p.hz / modelHz(p.n, 1, b), b
+	}
+	var s fitSums
+	for _, p := range a.parts {
+		s.add(p.n, p.hz, p.weight())
+	}
+	if nf0, nb, ok := s.solve(); ok {
+		return nf0, math.Max(0, nb)
+	}
+	return f0, b
+}
+
+// weight is 1/variance of y = (f/n)², the fit's ordinate.
+func (p partialEst) weight() float64 {
+	sy := 2 * p.hz / float64(p.n) * p.sd / float64(p.n)
+	return 1 / (sy * sy)
+}
+
+// fitPartials fits f0 and B by weighted least squares, dropping (from a.parts) partials
+// whose residual is an outlier. With one partial, f0 = f_n/n and B = 0.
+func (a *Analyzer) fitPartials() (f0, b float64) {
+	for {
+		if len(a.parts) == 1 {
+			return a.parts[0].hz / float64(a.parts[0].n), 0
+		}
+		var s fitSums
+		for _, p := range a.parts {
+			s.add(p.n, p.hz, p.weight())
+		}
+		f0, b, ok := s.solve()
+		if !ok {
+			a.parts = a.parts[:1]
+			continue
+		}
+		worst, worstZ := -1, outlierZ
+		for i, p := range a.parts {
+			if z := math.Abs(p.hz-modelHz(p.n, f0, b)) / p.sd; z > worstZ {
+				worst, worstZ = i, z
+			}
+		}
+		if worst < 0 || len(a.parts) <= 3 {
+			return f0, b
+		}
+		a.parts = append(a.parts[:worst], a.parts[worst+1:]...)
+	}
+}
+
+// octaveCheck looks for a wrong period. If every partial number shares a factor g > 1,
+// the true series starts at partial g (YIN chose a period g times too long). If the
+// spectrum holds partials between the found ones at 1/d of the spacing (d = 2 or 3),
+// the true fundamental is f0/d (YIN chose a period d times too short). It returns the
+// start frequency for the corrected search.
+func (a *Analyzer) octaveCheck(f0, b, minHz, maxHz float64) (float64, bool) {
+	g := 0
+	for _, p := range a.parts {
+		g = gcd(g, p.n)
+	}
+	if g > 1 && len(a.parts) >= 2 && modelHz(g, f0, b) <= maxHz*semitone {
+		return modelHz(g, f0, b), true
+	}
+	for d := 2; d <= 3; d++ {
+		fs, bs := f0/float64(d), b/float64(d*d)
+		if modelHz(1, fs, bs) < minHz/semitone {
+			continue
+		}
+		if a.subPartials(fs, bs, d) {
+			return modelHz(1, fs, bs), true
+		}
+	}
+	return 0, false
+}
+
+// subPartials reports whether the partials m (m not a multiple of d) of the series
+// (fs, bs) stand out: at least two of them and at least a third of those in band.
+func (a *Analyzer) subPartials(fs, bs float64, d int) bool {
+	sp := &a.spec
+	tested, hits := 0, 0
+	for m := 1; m <= d*a.cfg.MaxPartials; m++ {
+		if m%d == 0 {
+			continue
+		}
+		pred := modelHz(m, fs, bs)
+		if pred+searchWidth*fs > float64(sp.kmax)*sp.binHz {
+			break
+		}
+		tested++
+		k := sp.localMax(pred-searchWidth*fs, pred+searchWidth*fs)
+		if k >= 0 && sp.power[k] >= detectRatio*a.localFloor(k, fs) {
+			hits++
+		}
+	}
+	return hits >= 2 && 3*hits >= tested
+}
+
+// clarity is the share of the power between half the fundamental and the last partial
+// that lies within the found partials' peaks.
+func (a *Analyzer) clarity(f0 float64) float64 {
+	sp := &a.spec
+	last := a.parts[len(a.parts)-1].hz
+	lo := max(0, int(0.5*f0/sp.binHz))
+	hi := min(sp.kmax, int((last+0.5*f0)/sp.binHz))
+	var total, in float64
+	for k := lo; k <= hi; k++ {
+		total += sp.power[k]
+	}
+	half := min(int(math.Ceil(3*sp.sigma)), int(0.45*f0/sp.binHz))
+	for _, p := range a.parts {
+		c := int(math.Round(p.hz / sp.binHz))
+		for k := max(lo, c-half); k <= min(hi, c+half); k++ {
+			in += sp.power[k]
+		}
+	}
+	if total <= 0 {
+		return 0
+	}
+	return math.Min(1, in/total)
+}
+
+func gcd(a, b int) int {
+	for b != 0 {
+		a, b = b, a%b
+	}
+	return a
+}
