@@ -14,7 +14,7 @@ import (
 // channel, else the strings the exciter just drove, else every string of the lane),
 // restricts the pitch search to their plausible range and sizes the window for it.
 func (m *Monitor) begin(l *lane, onset int64) {
-	l.open, l.onset, l.clipped = true, onset, false
+	l.open, l.onset, l.clipped = true, onset, 0
 	l.win = l.win[:0]
 	l.skip = pitch.AttackSkip(m.rateHz)
 	l.by, l.noteCands = "", l.noteCands[:0]
@@ -50,14 +50,21 @@ func (l *lane) hears(idx int) bool {
 // or an unmatched entry.
 func (m *Monitor) analyze(l *lane) {
 	t := m.seconds(l.onset)
-	if l.clipped {
-		m.noPitch(pitch.ErrClipped, l)
+	if float64(l.clipped) > clipShare*float64(len(l.win)) {
+		m.noPitch(fmt.Errorf("%w: %d of %d samples at full scale; lower the input gain", pitch.ErrClipped,
+			l.clipped, len(l.win)), l)
 		return
 	}
 	if err := m.analyzer.Analyze(&m.note, l.win, l.hint); err != nil {
 		m.noPitch(err, l)
 		return
 	}
+	m.heard(l, t)
+}
+
+// heard attributes the analysed note (m.note) with onset at sample time t and records
+// it: the reading path after pitch analysis.
+func (m *Monitor) heard(l *lane, t float64) {
 	m.stats.notes.Add(1)
 	var mt match
 	if l.by != "" {
@@ -96,7 +103,6 @@ func (m *Monitor) record(idx int, cents, t float64, by string) {
 	prev, prevReason := tr.state, tr.reason
 	state, reason := tr.update(&r, &m.lim, &m.fit)
 	m.noteQuiet(tr)
-	m.stats.readings.Add(1)
 
 	e := m.newEntry(KindReading, t)
 	e.String, e.FundamentalHz, e.F0Hz, e.Inharmonicity = s.ID, m.note.FundamentalHz, m.note.F0Hz, m.note.B
@@ -108,10 +114,12 @@ func (m *Monitor) record(idx int, cents, t float64, by string) {
 	e.Detail = m.readingDetail(s.ID, idx, &r, by)
 	m.emit(e)
 	if state != prev || (state == Alarm && reason != prevReason) {
-		se := *e // a state entry carries the reading that caused it
-		se.Seq, se.Kind, se.Prev, se.Reason, se.Detail = 0, KindState, &prev, reason, ""
-		m.emit(&se)
+		se := &m.stateEntry
+		*se = *e // a state entry carries the reading that caused it
+		se.Seq, se.Kind, se.Prev, se.Reason, se.Detail = 0, KindState, statePtr(prev), reason, ""
+		m.emit(se)
 	}
+	m.stats.readings.Add(1) // after the entries: a reader of Stats finds them journaled
 }
 
 // partialDevs fills dev with each tracked partial's deviation from n·f0 in cents.
@@ -174,10 +182,22 @@ func finiteOr0(v float64) float64 {
 
 // emitUnmatched journals a note no string could claim; it is never guessed.
 func (m *Monitor) emitUnmatched(mt *match, t float64) {
-	m.stats.unmatched.Add(1)
 	e := m.newEntry(KindUnmatched, t)
 	e.FundamentalHz, e.F0Hz, e.Inharmonicity = m.note.FundamentalHz, m.note.F0Hz, m.note.B
 	e.Clarity, e.Partials = m.note.Clarity, len(m.note.Partials)
 	e.Reason, e.Detail = mt.reason, mt.detail
 	m.emit(e)
+	m.stats.unmatched.Add(1)
+}
+
+// stateValues backs the Prev pointers of state entries: sinks may keep entries, so
+// Prev must never point at memory the monitor reuses, and a shared read-only value
+// costs no allocation. Nobody writes through Prev.
+var stateValues = [...]State{Quiet, Settling, Steady, OffTarget, Alarm}
+
+func statePtr(s State) *State {
+	if int(s) < len(stateValues) {
+		return &stateValues[s]
+	}
+	return &s
 }

@@ -19,7 +19,8 @@ type lane struct {
 	det   *pitch.OnsetDetector
 	dc    dcBlocker
 	mono  []float32 // this lane's samples of the current block
-	clip  bool      // the current block has clipped samples
+	fed   int64     // samples pushed to det before the current block
+	clips []int32   // clips[i]: clipped samples among the block's first i (before the DC blocker)
 
 	// The note being collected.
 	open      bool
@@ -30,7 +31,7 @@ type lane struct {
 	by        string // byChannel, byExciter or "" (prediction among noteCands)
 	noteCands []int  // candidates of the current note
 	hint      pitch.Hint
-	clipped   bool // the window holds clipped samples
+	clipped   int // clipped samples in the window
 }
 
 // setupLanes decides which channel each string is heard on. Without pickup channels
@@ -95,36 +96,42 @@ const analyserMinHz = 20
 // push feeds one block (interleaved) starting at sample frame frame0 to the lane.
 func (m *Monitor) push(l *lane, interleaved []float32, frame0 int64) {
 	l.mono = capture.Channel(l.mono, interleaved, m.format.Channels, l.pick)
-	l.clip = hasClipping(l.mono)
+	l.clips = countClipped(l.clips, l.mono)
 	l.dc.filter(l.mono)
 	x := l.mono
 	on := l.det.Push(x)
+	early := int64(0) // an onset confirmed here may lie in the previous block
+	if last := l.det.Last(); on == 0 && last >= 0 && last < l.fed {
+		early = l.fed - last
+	}
+	l.fed += int64(len(x))
 	end := len(x)
 	if on >= 0 {
 		end = on
 	}
-	m.fill(l, x[:end])
+	m.fill(l, x[:end], 0)
 	if on >= 0 {
 		if l.open {
 			m.finishEarly(l)
 		}
-		m.begin(l, frame0+int64(on))
-		m.fill(l, x[on:])
+		m.begin(l, frame0+int64(on)-early)
+		l.skip = max(l.skip-int(early), 0)
+		m.fill(l, x[on:], on)
 	}
 }
 
-// fill adds samples to the open window, skipping the attack first, and analyses the
-// window once it is full.
-func (m *Monitor) fill(l *lane, x []float32) {
+// fill adds samples x (from index off of the block) to the open window, skipping the
+// attack first, and analyses the window once it is full.
+func (m *Monitor) fill(l *lane, x []float32, off int) {
 	if !l.open {
 		return
 	}
 	k := min(l.skip, len(x))
 	l.skip -= k
-	x = x[k:]
+	x, off = x[k:], off+k
 	k = min(l.need-len(l.win), len(x))
 	l.win = append(l.win, x[:k]...)
-	l.clipped = l.clipped || (l.clip && k > 0)
+	l.clipped += int(l.clips[off+k] - l.clips[off])
 	if len(l.win) == l.need {
 		l.open = false
 		m.analyze(l)
@@ -167,14 +174,23 @@ func (d *dcBlocker) filter(x []float32) {
 }
 
 // clipLevel is the magnitude at which a sample counts as clipped (full scale, less
-// the rounding of 16-bit and 24-bit converters).
-const clipLevel = 0.999
+// the rounding of 16-bit and 24-bit converters); a window with more than clipShare of
+// its samples there is not analysed (the DC blocker would hide the flat tops from the
+// analyser's own check).
+const (
+	clipLevel = 0.999
+	clipShare = 0.01
+)
 
-func hasClipping(x []float32) bool {
+// countClipped returns the running count of clipped samples of x, reusing dst.
+func countClipped(dst []int32, x []float32) []int32 {
+	dst = append(dst[:0], 0)
+	n := int32(0)
 	for _, v := range x {
 		if v >= clipLevel || v <= -clipLevel {
-			return true
+			n++
 		}
+		dst = append(dst, n)
 	}
-	return false
+	return dst
 }

@@ -86,21 +86,23 @@ type Monitor struct {
 	quietHr quietHours
 
 	// Owned by the analysis goroutine (Run).
-	analyzer  *pitch.Analyzer
-	note      pitch.Note
-	trackers  []*tracker
-	matcher   matcher
-	lanes     []*lane
-	fit       fitScratch
-	frame     int64 // analysis sample clock: frames and gap frames since sample 0
-	nextQuiet float64
-	entry     Entry
-	clk       liveClock
-	jDown     bool // journal appends are failing
-	resumed   int
-	hintMinHz float64 // the analyser's search range
-	hintMaxHz float64
-	clipLog   logLimiter
+	analyzer   *pitch.Analyzer
+	note       pitch.Note
+	trackers   []*tracker
+	matcher    matcher
+	lanes      []*lane
+	fit        fitScratch
+	frame      int64 // analysis sample clock: frames and gap frames since sample 0
+	nextQuiet  float64
+	entry      Entry // reused for every entry, so emitting allocates nothing
+	stateEntry Entry
+	prev       State
+	clk        liveClock
+	jDown      bool // journal appends are failing
+	resumed    int
+	hintMinHz  float64 // the analyser's search range
+	hintMaxHz  float64
+	clipLog    logLimiter
 
 	captured atomic.Int64 // capture-side sample clock, for Excite by the round scheduler
 	excites  exciteLog

@@ -81,7 +81,7 @@ func (m *Monitor) capture(ctx context.Context, free, full chan *block) error {
 			full <- b // never blocks: full has room for every block of the pool
 		}
 		if done, rerr := m.endOfRead(ctx, err); done {
-			m.flushPending(&pending, free, full)
+			m.flushPending(ctx, &pending, free, full)
 			return rerr
 		}
 	}
@@ -137,9 +137,9 @@ func (m *Monitor) endOfRead(ctx context.Context, err error) (bool, error) {
 	return true, fmt.Errorf("read audio: %w", err)
 }
 
-// flushPending hands on a gap or drop still pending at the end, so the stop entry's
-// time includes it.
-func (m *Monitor) flushPending(p *block, free, full chan *block) {
+// flushPending hands on a gap or drop still pending at the end, waiting for analysis
+// to free a block, so the journal and the stop entry's time include it.
+func (m *Monitor) flushPending(ctx context.Context, p *block, free, full chan *block) {
 	if p.gap == 0 && p.dropped == 0 {
 		return
 	}
@@ -147,7 +147,9 @@ func (m *Monitor) flushPending(p *block, free, full chan *block) {
 	case b := <-free:
 		b.n, b.gap, b.reason, b.dropped = 0, p.gap, p.reason, p.dropped
 		full <- b
-	default:
+	case <-ctx.Done():
+		m.log.Warn().Int64("dropped_frames", p.dropped).Int64("gap_frames", p.gap).
+			Msg("stopped before the last gap was journaled")
 	}
 }
 

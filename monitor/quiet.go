@@ -42,7 +42,7 @@ func (m *Monitor) advanceQuiet(t float64) {
 		tr.state, tr.reason = Quiet, "no-reading"
 		e := m.newEntry(KindState, q.at)
 		e.String, e.State, e.Reason = m.cfg.Instrument.Strings[q.idx].ID, Quiet, "no-reading"
-		e.Prev = &prev
+		e.Prev = statePtr(prev)
 		e.Cents, e.RateCentsHour = tr.lastCents, tr.rate
 		m.emit(e)
 	}

@@ -164,7 +164,9 @@ func (tr *tracker) fitRate(now float64, lim *limits, fit *fitScratch) {
 	slope, ok, fit.pairs = theilSen(fit.pairs, fit.t, fit.y)
 	span := 0.0
 	if len(fit.t) > 1 {
-		span = (fit.t[len(fit.t)-1] - fit.t[0]) * 3600
+		// 1 % slack: readings every 10 minutes span 30 minutes even when onset
+		// detection puts the first a few milliseconds late.
+		span = (fit.t[len(fit.t)-1] - fit.t[0]) * 3600 * 1.01
 	}
 	tr.trend, tr.trendOK = slope, ok && span >= lim.rateWindowS/maxTrendShare
 	tr.rate, tr.rateOK = slope, ok && len(fit.t) >= minFitReadings && span >= lim.rateWindowS/minFitSpanShare

@@ -6,7 +6,8 @@ import (
 )
 
 const (
-	detectRatio = 30   // a partial's peak must exceed the mean local noise power this much (14.8 dB)
+	detectRatio = 50   // a partial's peak must exceed the mean local noise power this much (17 dB) …
+	loneRatio   = 1000 // … and a lone partial (a plain sine) this much (30 dB)
 	relFloor    = 1e-6 // … and be within 60 dB of the strongest partial found
 	searchWidth = 0.25 // search ±this share of f0 around each predicted partial
 	outlierZ    = 6.0  // drop a partial whose fit residual exceeds this many standard deviations
@@ -18,12 +19,14 @@ const (
 type partialEst struct {
 	n               int
 	hz, db, snr, sd float64 // frequency, level, peak-to-floor power ratio, std. dev. (Hz)
+	local           float64 // peak power over the local noise floor
 }
 
 // result is the outcome of the spectral stage.
 type result struct {
 	f0Hz, b, clarity float64
 	power            float64 // sum of the partials' squared amplitudes
+	complete         float64 // share of the partial positions in band where a partial was found
 	used             int
 }
 
@@ -35,8 +38,8 @@ func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
 		if err := a.spectrumFor(start); err != nil {
 			return err
 		}
-		a.track(start)
-		if len(a.parts) == 0 {
+		searched := a.track(start)
+		if len(a.parts) == 0 || len(a.parts) == 1 && a.parts[0].local < loneRatio {
 			return ErrNoPitch
 		}
 		f0, b := a.fitPartials()
@@ -51,6 +54,7 @@ func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
 		}
 		res.f0Hz, res.b, res.used = f0, b, a.spec.l<<a.spec.level
 		res.clarity = a.clarity(f0)
+		res.complete = float64(len(a.parts)) / float64(max(1, searched))
 		res.power = 0
 		for _, p := range a.parts {
 			res.power += math.Pow(10, p.db/10)
@@ -64,7 +68,8 @@ func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
 
 // track searches partials n = 1..MaxPartials near n·f0·sqrt(1+B·n²), refitting f0 and
 // B after every partial found so that the prediction follows the stretch of the series.
-func (a *Analyzer) track(startHz float64) {
+// It returns the number of positions searched (those within the band).
+func (a *Analyzer) track(startHz float64) (searched int) {
 	sp := &a.spec
 	a.parts = a.parts[:0]
 	f0, b := startHz, 0.0
@@ -74,6 +79,7 @@ func (a *Analyzer) track(startHz float64) {
 		if pred > float64(sp.kmax)*sp.binHz {
 			break
 		}
+		searched++
 		k := sp.localMax(pred-searchWidth*f0, pred+searchWidth*f0)
 		if k < 0 {
 			continue
@@ -84,10 +90,14 @@ func (a *Analyzer) track(startHz float64) {
 		}
 		hz, power := sp.peak(k)
 		strongest = math.Max(strongest, power)
-		snr := power / math.Max(floor, 1e-300)
-		a.parts = append(a.parts, partialEst{n: n, hz: hz, db: sp.amplitudeDB(power), snr: snr, sd: sp.binSigmaHz(snr)})
+		// The fit's weights use the band's noise floor: local floors between closely
+		// spaced partials are set by the partials' own skirts, not by the noise.
+		snr := power / math.Max(sp.floor, 1e-300)
+		a.parts = append(a.parts, partialEst{n: n, hz: hz, db: sp.amplitudeDB(power), snr: snr,
+			sd: sp.binSigmaHz(snr), local: sp.power[k] / math.Max(floor, 1e-300)})
 		f0, b = a.predictModel(f0, b)
 	}
+	return searched
 }
 
 // predictModel updates the running f0 and B from the partials found so far. B is kept
@@ -143,7 +153,8 @@ func (a *Analyzer) fitPartials() (f0, b float64) {
 }
 
 // octaveCheck looks for a wrong period. If every partial number shares a factor g > 1,
-// the true series starts at partial g (YIN chose a period g times too long). If the
+// the true series starts at partial g (YIN chose a period g times too long); a lone
+// partial is taken as partial 1. If the
 // spectrum holds partials between the found ones at 1/d of the spacing (d = 2 or 3),
 // the true fundamental is f0/d (YIN chose a period d times too short). It returns the
 // start frequency for the corrected search.
@@ -152,7 +163,7 @@ func (a *Analyzer) octaveCheck(f0, b, minHz, maxHz float64) (float64, bool) {
 	for _, p := range a.parts {
 		g = gcd(g, p.n)
 	}
-	if g > 1 && len(a.parts) >= 2 && modelHz(g, f0, b) <= maxHz*semitone {
+	if g > 1 && modelHz(g, f0, b) <= maxHz*semitone {
 		return modelHz(g, f0, b), true
 	}
 	for d := 2; d <= 3; d++ {

@@ -65,11 +65,13 @@ const (
 	clipLevel = 0.999 // |sample| at or above this counts as full scale
 	clipShare = 0.01  // ErrClipped when this share of samples is at full scale
 
-	specPeriods    = 12   // wanted periods of the pitch in the spectral window
-	specMinPeriods = 6    // fewest periods that still resolve the partials
-	specMinS       = 0.1  // shortest wanted spectral window, seconds
-	specMaxS       = 0.5  // longest spectral window, seconds
-	minClarity     = 0.05 // below this the tone is called noise
+	specPeriods     = 12   // periods of the pitch in the spectral window, at least
+	specLongPeriods = 48   // periods wanted for precision …
+	specLongS       = 0.2  // … as long as the window stays within this many seconds
+	specMinPeriods  = 6    // fewest periods that still resolve the partials
+	specMinS        = 0.05 // shortest spectral window, seconds
+	specMaxS        = 0.5  // longest spectral window, seconds
+	minClarity      = 0.05 // below this the tone is called noise
 )
 
 // Analyzer measures notes. It owns its buffers, so one Analyzer must not be used by
@@ -80,20 +82,21 @@ type Analyzer struct {
 	pyr  pyramid
 	ffts [32]*fourier.FFT // plans by log2 size, made on first use
 
-	fftIn     []float64
-	specA     []complex128
-	specB     []complex128
-	corr      []float64
-	power     []float64
-	energy    []float64 // prefix sums of squares of the loaded samples
-	yinEnergy []float64 // prefix sums of squares at the YIN level
-	scratch   []float64
-	yinD      [yinFrames][]float64
-	yinDP     [yinFrames][]float64
-	parts     []partialEst
-	cands     []float64 // alternative YIN estimates (Hz) when no dip is below the threshold
-	spec      spectrum
-	levelSum  float64 // sum of squares of the loaded samples
+	fftIn       []float64
+	specA       []complex128
+	specB       []complex128
+	corr        []float64
+	power       []float64
+	energy      []float64 // prefix sums of squares of the loaded samples
+	yinEnergy   []float64 // prefix sums of squares at the YIN level
+	scratch     []float64
+	bandScratch []float64
+	yinD        [yinFrames][]float64
+	yinDP       [yinFrames][]float64
+	parts       []partialEst
+	cands       []float64 // alternative YIN estimates (Hz) when no dip is below the threshold
+	spec        spectrum
+	levelSum    float64 // sum of squares of the loaded samples
 }
 
 // New returns an Analyzer for cfg, with zero fields replaced by their defaults.
@@ -104,16 +107,20 @@ func New(cfg Config) (*Analyzer, error) {
 	}
 	a := &Analyzer{cfg: cfg, rate: cfg.SampleRate}
 	a.pyr.init(cfg.MaxSamples)
-	m := nextPow2(cfg.MaxSamples)
-	a.fftIn = make([]float64, m)
-	a.specA = make([]complex128, m/2+1)
-	a.specB = make([]complex128, m/2+1)
-	a.corr = make([]float64, m)
-	a.power = make([]float64, m/2+1)
+	// Upper bounds over every hint: the longest lag is that of MinHz at the full rate,
+	// and the spectral window is at most specMaxS, zero-padded to twice its length.
+	tauMax := int(math.Ceil(cfg.SampleRate/cfg.MinHz)) + 2
+	yinM := nextPow2(2*tauMax + int(math.Ceil(yinMinWinS*cfg.SampleRate)) + 1)
+	specM := nextPow2(specPad * min(cfg.MaxSamples, int(math.Ceil(specMaxS*cfg.SampleRate))))
+	a.fftIn = make([]float64, max(yinM, specM))
+	a.specA = make([]complex128, max(yinM, specM)/2+1)
+	a.specB = make([]complex128, yinM/2+1)
+	a.corr = make([]float64, yinM)
+	a.power = make([]float64, specM/2+1)
 	a.energy = make([]float64, cfg.MaxSamples+1)
 	a.yinEnergy = make([]float64, cfg.MaxSamples+1)
-	a.scratch = make([]float64, 4*scratchHalf+1)
-	tauMax := a.yinMaxTau()
+	a.scratch = make([]float64, 2*scratchHalf+1)
+	a.bandScratch = make([]float64, specM/2+1)
 	for i := range a.yinD {
 		a.yinD[i] = make([]float64, tauMax+1)
 		a.yinDP[i] = make([]float64, tauMax+1)
@@ -174,7 +181,7 @@ func (a *Analyzer) Analyze(dst *Note, x []float32, hint Hint) error {
 		return err
 	}
 	n := min(len(x), a.cfg.MaxSamples, a.regionLen(minHz, maxHz))
-	if need := a.yinNeed(minHz, maxHz); n < need {
+	if need := yinNeed(a.rate, minHz, maxHz); n < need {
 		return fmt.Errorf("%w: need %d samples for %.4g Hz at %.0f Hz, got %d", ErrTooShort, need, minHz, a.rate, n)
 	}
 	if err := a.load(x[:n]); err != nil {
@@ -187,49 +194,28 @@ func (a *Analyzer) Analyze(dst *Note, x []float32, hint Hint) error {
 	if err != nil {
 		return err
 	}
-	start := yinHz
-	if !sure {
-		start = a.bestCandidate(yinHz, minHz, maxHz)
-	}
 	var res result
-	if err := a.refine(&res, start, minHz, maxHz); err != nil {
+	err = a.refine(&res, yinHz, minHz, maxHz)
+	if !sure || err != nil || res.complete < minComplete {
+		start := a.bestCandidate(&res, err, yinHz, minHz, maxHz)
+		err = a.refine(&res, start, minHz, maxHz)
+	}
+	if err != nil {
 		return err
 	}
 	a.fill(dst, &res, yinHz)
 	return nil
 }
 
-// bestCandidate chooses among YIN's estimate and its other deep dips, when none is
-// below the threshold, the one whose partial series holds the most power.
-func (a *Analyzer) bestCandidate(yinHz, minHz, maxHz float64) float64 {
-	best, bestPower := yinHz, -1.0
-	var res result
-	for i := -1; i < len(a.cands); i++ {
-		f := yinHz
-		if i >= 0 {
-			f = a.cands[i]
-		}
-		if a.refine(&res, f, minHz, maxHz) != nil {
-			continue
-		}
-		if res.power > bestPower*(1+1e-9) {
-			best, bestPower = f, res.power
-		}
-	}
-	return best
-}
-
-// regionLen is the number of input samples Analyze may use for the range: the YIN
-// frames, or the spectral window for the lowest pitch, whichever is longer.
+// regionLen is the number of input samples Analyze may use for the range.
 func (a *Analyzer) regionLen(minHz, maxHz float64) int {
-	return max(a.yinSpan(minHz, maxHz), a.specSpan(minHz/semitone))
+	return regionLen(a.rate, minHz, maxHz, a.cfg.MaxPartials)
 }
 
-// specSpan is the number of input samples the spectral window for a tone at fHz uses.
-func (a *Analyzer) specSpan(fHz float64) int {
-	want := int(math.Ceil(math.Max(specMinS, math.Min(specMaxS, specPeriods/fHz)) * a.rate))
-	k := a.specLevel(float64(a.cfg.MaxPartials) * fHz * stretchRoom)
-	return inputLen(k, want>>k)
+// regionLen is the longer of the YIN frames and the spectral window for the lowest
+// pitch (a semitone below minHz, where the octave check may still land).
+func regionLen(rate, minHz, maxHz float64, maxPartials int) int {
+	return max(yinSpan(rate, minHz, maxHz), specSpan(rate, minHz/semitone, maxPartials))
 }
 
 // searchRange intersects the hint with the configured range.

@@ -6,19 +6,19 @@ import (
 )
 
 const (
-	yinThreshold = 0.1  // absolute threshold of step 4 (the paper's value)
-	yinMinWinS   = 0.01 // shortest integration window, seconds
-	yinSplit     = 8    // the long-lag band covers pitches below maxHz/yinSplit
-	maxCands     = 4    // candidates kept when no dip is below the threshold
-	yinFrames    = 3    // frames for the best local estimate (step 6)
-	yinRangeTol  = 0.2  // step 6 re-search range: ±20 % of the best frame's period
+	yinThreshold   = 0.1  // absolute threshold of step 4 (the paper's value)
+	yinMinWinS     = 0.01 // shortest integration window, seconds
+	yinSplit       = 4    // the long-lag band covers pitches below maxHz/yinSplit …
+	yinSplitLevels = 2    // … at a rate 2^yinSplitLevels times lower
+	yinFrames      = 3    // frames for the best local estimate (step 6)
+	yinRangeTol    = 0.2  // step 6 re-search range: ±20 % of the best frame's period
 )
 
 // yinLevel picks the pyramid level for YIN: the lowest rate that still holds maxHz at
 // four or more samples per period, so the difference function stays well sampled.
-func (a *Analyzer) yinLevel(maxHz float64) int {
+func yinLevel(rate, maxHz float64) int {
 	k := 0
-	for k < maxLevels && maxHz <= 0.25*levelRate(a.rate, k+1) {
+	for k < maxLevels && maxHz <= 0.25*levelRate(rate, k+1) {
 		k++
 	}
 	return k
@@ -30,22 +30,23 @@ type yinBand struct {
 }
 
 // yinBands splits the search range in two: the short lags (high notes) at the rate the
-// highest pitch needs, and the long lags (below maxHz/8) at an eight times lower rate,
-// where the same periods take eight times fewer samples. Each band is a complete YIN
+// highest pitch needs, and the long lags (below maxHz/4) at a four times lower rate,
+// where the same periods take four times fewer samples. Each band is a complete YIN
 // from lag 1 on its level; see the package doc.
-func (a *Analyzer) yinBands(dst *[2]yinBand, minHz, maxHz float64) []yinBand {
+func yinBands(dst *[2]yinBand, rate, minHz, maxHz float64) []yinBand {
 	split := maxHz / yinSplit
-	if minHz >= split {
-		dst[0] = a.yinBand(minHz, maxHz, a.yinLevel(maxHz))
+	k := yinLevel(rate, maxHz)
+	if minHz >= split || k+yinSplitLevels > maxLevels {
+		dst[0] = newYINBand(rate, minHz, maxHz, k)
 		return dst[:1]
 	}
-	dst[0] = a.yinBand(split, maxHz, a.yinLevel(maxHz))
-	dst[1] = a.yinBand(minHz, split, a.yinLevel(split))
+	dst[0] = newYINBand(rate, split, maxHz, k)
+	dst[1] = newYINBand(rate, minHz, split, k+yinSplitLevels)
 	return dst[:2]
 }
 
-func (a *Analyzer) yinBand(loHz, hiHz float64, k int) yinBand {
-	r := levelRate(a.rate, k)
+func newYINBand(rate, loHz, hiHz float64, k int) yinBand {
+	r := levelRate(rate, k)
 	tauMax := int(math.Ceil(r/loHz)) + 1
 	return yinBand{
 		level:  k,
@@ -57,31 +58,21 @@ func (a *Analyzer) yinBand(loHz, hiHz float64, k int) yinBand {
 
 // yinNeed is the fewest input samples YIN accepts: in every band one frame with a
 // window of one longest period.
-func (a *Analyzer) yinNeed(minHz, maxHz float64) int {
+func yinNeed(rate, minHz, maxHz float64) int {
 	var bands [2]yinBand
 	n := 0
-	for _, b := range a.yinBands(&bands, minHz, maxHz) {
+	for _, b := range yinBands(&bands, rate, minHz, maxHz) {
 		n = max(n, inputLen(b.level, 2*b.tauMax+1))
 	}
 	return n
 }
 
 // yinSpan is the number of input samples that all YIN frames together use.
-func (a *Analyzer) yinSpan(minHz, maxHz float64) int {
+func yinSpan(rate, minHz, maxHz float64) int {
 	var bands [2]yinBand
 	n := 0
-	for _, b := range a.yinBands(&bands, minHz, maxHz) {
+	for _, b := range yinBands(&bands, rate, minHz, maxHz) {
 		n = max(n, inputLen(b.level, 2*((b.tauMax+1)/2)+b.w+b.tauMax+1))
-	}
-	return n
-}
-
-// yinMaxTau is the longest lag any search within the configured range uses.
-func (a *Analyzer) yinMaxTau() int {
-	var bands [2]yinBand
-	n := 0
-	for _, b := range a.yinBands(&bands, a.cfg.MinHz, a.cfg.MaxHz) {
-		n = max(n, b.tauMax)
 	}
 	return n
 }
@@ -94,7 +85,7 @@ func (a *Analyzer) yin(minHz, maxHz float64) (hz float64, sure bool, err error) 
 	var bands [2]yinBand
 	a.cands = a.cands[:0]
 	bestDP := math.Inf(1)
-	for _, b := range a.yinBands(&bands, minHz, maxHz) {
+	for _, b := range yinBands(&bands, a.rate, minHz, maxHz) {
 		period, dp, below, err := a.yinRun(b)
 		if err != nil {
 			return 0, false, err

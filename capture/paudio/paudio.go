@@ -10,7 +10,6 @@ import (
 	"runtime"
 	"strings"
 	"sync"
-	"sync/atomic"
 	"time"
 
 	"github.com/gordonklaus/portaudio"
@@ -28,25 +27,11 @@ var paMu sync.Mutex
 // Stream is a live input stream; see the package documentation.
 type Stream struct {
 	format       capture.Format
-	blocks       chan block
-	free         chan []float32
+	q            *blockQueue
 	stop         chan struct{}
 	done         chan struct{}
 	stopOnce     sync.Once
 	closeTimeout time.Duration
-
-	cur block
-	off int
-	err error
-
-	frames, overflows, droppedBlocks, droppedFrames atomic.Int64
-}
-
-type block struct {
-	buf []float32
-	n   int
-	gap *capture.Gap // frames lost before this block, or nil
-	err error
 }
 
 // Open opens the input whose name contains deviceSubstring ("" = the default input),
@@ -59,8 +44,6 @@ func Open(deviceSubstring string) (*Stream, error) {
 func OpenWith(o Options) (*Stream, error) {
 	o = o.withDefaults()
 	s := &Stream{
-		blocks:       make(chan block, o.QueueBlocks),
-		free:         make(chan []float32, o.QueueBlocks),
 		stop:         make(chan struct{}),
 		done:         make(chan struct{}),
 		closeTimeout: o.CloseTimeout,
@@ -103,16 +86,13 @@ func (s *Stream) run(o Options, ready chan<- error) {
 	defer runtime.UnlockOSThread()
 	defer close(s.done)
 	st, buf, err := s.open(o)
-	ready <- err
 	if err != nil {
+		ready <- err
 		return
 	}
 	defer shutdown(st)
-	for range cap(s.free) {
-		s.free <- make([]float32, len(buf))
-	}
-	frames := int64(len(buf) / o.Channels)
-	var gap *capture.Gap
+	s.q = newBlockQueue(o.Channels, len(buf), o.QueueBlocks, s.stop)
+	ready <- nil
 	for {
 		select {
 		case <-s.stop:
@@ -120,38 +100,13 @@ func (s *Stream) run(o Options, ready chan<- error) {
 		default:
 		}
 		err := st.Read()
-		if errors.Is(err, portaudio.InputOverflowed) {
-			// The buffer is good; PortAudio discarded an unknown amount of audio before it.
-			s.overflows.Add(1)
-			gap = &capture.Gap{Frames: -1, Reason: capture.GapOverflow}
-			err = nil
-		}
-		if err != nil {
-			select {
-			case s.blocks <- block{err: fmt.Errorf("paudio: read: %w", err)}:
-			case <-s.stop:
-			}
+		// An overflow leaves a good buffer; PortAudio discarded audio before it.
+		overflowed := errors.Is(err, portaudio.InputOverflowed)
+		if err != nil && !overflowed {
+			s.q.fail(fmt.Errorf("paudio: read: %w", err))
 			return
 		}
-		s.frames.Add(frames)
-		var out []float32
-		select {
-		case out = <-s.free:
-		default:
-			// The reader is behind and every buffer is queued: drop, never wait.
-			s.droppedBlocks.Add(1)
-			s.droppedFrames.Add(frames)
-			if gap == nil {
-				gap = &capture.Gap{Reason: capture.GapDropped}
-			}
-			if gap.Frames >= 0 {
-				gap.Frames += frames
-			}
-			continue
-		}
-		copy(out, buf)
-		s.blocks <- block{buf: out, n: len(buf), gap: gap} // never blocks: cap(blocks) = buffers
-		gap = nil
+		s.q.put(buf, overflowed)
 	}
 }
 
@@ -306,38 +261,7 @@ func (s *Stream) Format() capture.Format { return s.format }
 // *capture.Gap comes with the good samples that follow lost frames. Other errors
 // (the device failed) are final.
 func (s *Stream) Read(ctx context.Context, dst []float32) (int, error) {
-	if s.err != nil {
-		return 0, s.err
-	}
-	ch := s.format.Channels
-	if len(dst) < ch {
-		return 0, fmt.Errorf("paudio: read buffer of %d samples holds no whole frame of %d channels", len(dst), ch)
-	}
-	var gap *capture.Gap
-	if s.off >= s.cur.n {
-		if s.cur.buf != nil {
-			s.free <- s.cur.buf
-			s.cur = block{}
-		}
-		select {
-		case s.cur = <-s.blocks:
-			s.off = 0
-		case <-ctx.Done():
-			return 0, ctx.Err()
-		}
-		if s.cur.err != nil {
-			s.err = s.cur.err
-			return 0, s.err
-		}
-		gap = s.cur.gap
-	}
-	n := min(len(dst)/ch*ch, s.cur.n-s.off)
-	copy(dst, s.cur.buf[s.off:s.off+n])
-	s.off += n
-	if gap != nil {
-		return n, gap
-	}
-	return n, nil
+	return s.q.read(ctx, dst)
 }
 
 // Close stops capture and releases the device: abort, close, Terminate, all on the
@@ -356,11 +280,4 @@ func (s *Stream) Close() error {
 }
 
 // Stats returns the stream's counters; it is safe to call from any goroutine.
-func (s *Stream) Stats() Stats {
-	return Stats{
-		Frames:        s.frames.Load(),
-		Overflows:     s.overflows.Load(),
-		DroppedBlocks: s.droppedBlocks.Load(),
-		DroppedFrames: s.droppedFrames.Load(),
-	}
-}
+func (s *Stream) Stats() Stats { return s.q.stats() }

@@ -13,7 +13,7 @@ func cmdCheck(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	fs := flag.NewFlagSet("check", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	fs.Usage = func() { fmt.Fprintln(stderr, "usage: taut check CONFIG") }
-	path, err := configArg(fs, args)
+	path, err := scaleConfigArg(fs, args)
 	if err != nil || path == "" {
 		return err
 	}

@@ -25,10 +25,13 @@ func watchSignals(log zerolog.Logger, out *logOutput) (stop func()) {
 			case <-done:
 				return
 			case <-hup:
-				if err := out.Reopen(); err != nil {
+				switch err := out.Reopen(); {
+				case err != nil:
 					log.Error().Err(err).Msg("SIGHUP: reopen log file")
-				} else {
-					log.Info().Msg("SIGHUP: log file reopened")
+				case out.path == "":
+					log.Info().Msg("SIGHUP: logging to stderr, no log file to reopen")
+				default:
+					log.Info().Str("file", out.path).Msg("SIGHUP: log file reopened")
 				}
 			}
 		}

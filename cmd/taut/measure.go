@@ -6,10 +6,7 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"math"
 	"os"
-	"runtime"
-	"strings"
 
 	"golang.org/x/term"
 )

@@ -19,13 +19,13 @@ func cmdScale(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	fs := flag.NewFlagSet("scale", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	units := fs.String("units", "si", "force units of the text and CSV output: si (N), kgf or lbf")
-	asJSON := fs.Bool("json", false, "print the sheet as JSON (always SI: newtons, metres, kg/m)")
+	asJSON := fs.Bool("json", false, "print the scaleSheet as JSON (always SI: newtons, metres, kg/m)")
 	asCSV := fs.Bool("csv", false, "print one CSV row per string")
 	fs.Usage = func() {
 		fmt.Fprintln(stderr, "usage: taut scale [--units si|kgf|lbf] [--json | --csv] CONFIG")
 		fs.PrintDefaults()
 	}
-	path, err := configArg(fs, args)
+	path, err := scaleConfigArg(fs, args)
 	if err != nil || path == "" {
 		return err
 	}
@@ -40,24 +40,24 @@ func cmdScale(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err != nil {
 		return err
 	}
-	sh := newSheet(cfg)
+	sh := newScaleSheet(cfg)
 	switch {
 	case *asJSON:
 		enc := json.NewEncoder(stdout)
 		enc.SetIndent("", "  ")
-		return enc.Encode(sh)
+		return enc.Encode(sh.rounded())
 	case *asCSV:
 		if sh.Caution != "" {
 			fmt.Fprintln(stderr, sh.Caution)
 		}
-		return writeSheetCSV(stdout, sh, unit)
+		return writeScaleCSV(stdout, sh, unit)
 	}
-	return writeSheetText(stdout, sh, unit)
+	return writeScaleText(stdout, sh, unit)
 }
 
-// configArg parses flags and the one CONFIG argument; flags may also follow it. It
+// scaleConfigArg parses flags and the one CONFIG argument; flags may also follow it. It
 // returns "" and no error after printing the usage for -h.
-func configArg(fs *flag.FlagSet, args []string) (string, error) {
+func scaleConfigArg(fs *flag.FlagSet, args []string) (string, error) {
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {
 			return "", nil // usage already printed

@@ -10,9 +10,9 @@ import (
 	"taut/monitor/tension"
 )
 
-// writeSheetText prints the scale sheet for people.
-func writeSheetText(w io.Writer, sh *sheet, u tension.ForceUnit) error {
-	ew := &errWriter{w: w}
+// writeScaleText prints the scale sheet for people.
+func writeScaleText(w io.Writer, sh *scaleSheet, u tension.ForceUnit) error {
+	ew := &scaleWriter{w: w}
 	ew.printf("Scale sheet: %s\n", sh.Instrument)
 	ew.printf("config %s, A4 = %g Hz, forces in %s, lengths and diameters in mm\n\n", sh.Config, sh.ReferenceHz, u.Symbol)
 	idW, conW := len("id"), len("construction")
@@ -33,14 +33,14 @@ func writeSheetText(w io.Writer, sh *sheet, u tension.ForceUnit) error {
 			1000*r.MassPerMKg, weighed, u.From(r.TensionN), u.From(r.BreakingN), 100*r.Margin, r.Inharmonicity, r.Flag)
 		ew.printf("%s\n", strings.TrimRight(row, " "))
 	}
-	writeTotals(ew, sh, u)
-	writeNotes(ew, sh)
+	writeScaleTotals(ew, sh, u)
+	writeScaleNotes(ew, sh)
 	return ew.err
 }
 
-func writeTotals(ew *errWriter, sh *sheet, u tension.ForceUnit) {
+func writeScaleTotals(ew *scaleWriter, sh *scaleSheet, u tension.ForceUnit) {
 	ew.printf("\nTotals%14s  %7s  %12s  %s\n", "", "strings", "tension "+u.Symbol, "margin min-max")
-	line := func(t sectionTotal) {
+	line := func(t scaleTotal) {
 		name := t.Section
 		if name == "" {
 			name = "(no section)"
@@ -50,22 +50,22 @@ func writeTotals(ew *errWriter, sh *sheet, u tension.ForceUnit) {
 	for _, t := range sh.Sections {
 		line(t)
 	}
-	line(sectionTotal{Section: "whole instrument", Strings: len(sh.Strings), TensionN: sh.TotalTensionN,
+	line(scaleTotal{Section: "whole instrument", Strings: len(sh.Strings), TensionN: sh.TotalTensionN,
 		MinMargin: sh.MinMargin, MaxMargin: sh.MaxMargin})
 	if u != tension.Newton {
 		ew.printf("  (%.0f N in all)\n", sh.TotalTensionN)
 	}
 }
 
-func writeNotes(ew *errWriter, sh *sheet) {
+func writeScaleNotes(ew *scaleWriter, sh *scaleSheet) {
 	counts := map[string]int{}
 	for _, r := range sh.Strings {
 		counts[r.Flag]++
 	}
 	ew.printf("\nFlags: warn above %.0f %% of breaking load (%d), ALARM above %.0f %% (%d): trade figures;\n",
-		100*sh.MarginWarn, counts[flagWarn], 100*sh.MarginAlarm, counts[flagAlarm])
+		100*sh.MarginWarn, counts[scaleFlagWarn], 100*sh.MarginAlarm, counts[scaleFlagAlarm])
 	ew.printf("low below %.0f %% (%d): engineering judgement, a string that slack may buzz, drift or be the wrong gauge.\n",
-		100*sh.MarginLow, counts[flagLow])
+		100*sh.MarginLow, counts[scaleFlagLow])
 	ew.printf("Mass per length from geometry; * = weighed value from the config.\n")
 	ew.printf("B is predicted from the core alone: a lower bound for wound strings.\n")
 	ew.printf("Margin = tension / breaking load of the core. Strength basis, by core material:\n")
@@ -78,8 +78,8 @@ func writeNotes(ew *errWriter, sh *sheet) {
 	}
 }
 
-// writeSheetCSV prints one row per string, units in the header.
-func writeSheetCSV(w io.Writer, sh *sheet, u tension.ForceUnit) error {
+// writeScaleCSV prints one row per string, units in the header.
+func writeScaleCSV(w io.Writer, sh *scaleSheet, u tension.ForceUnit) error {
 	cw := csv.NewWriter(w)
 	sym := u.Symbol
 	if sym == "N" {
@@ -98,13 +98,13 @@ func writeSheetCSV(w io.Writer, sh *sheet, u tension.ForceUnit) error {
 	return cw.Error()
 }
 
-// errWriter keeps the first write error so that formatting code stays linear.
-type errWriter struct {
+// scaleWriter keeps the first write error so that formatting code stays linear.
+type scaleWriter struct {
 	w   io.Writer
 	err error
 }
 
-func (e *errWriter) printf(format string, a ...any) {
+func (e *scaleWriter) printf(format string, a ...any) {
 	if e.err == nil {
 		_, e.err = fmt.Fprintf(e.w, format, a...)
 	}

@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 
 	"taut/monitor/instrument"
@@ -24,13 +25,13 @@ technician's judgement.`
 
 // Flags of one string on the scale sheet.
 const (
-	flagLow   = "low"
-	flagWarn  = "warn"
-	flagAlarm = "ALARM"
+	scaleFlagLow   = "low"
+	scaleFlagWarn  = "warn"
+	scaleFlagAlarm = "ALARM"
 )
 
-// sheetRow is one string on the scale sheet, in SI.
-type sheetRow struct {
+// scaleRow is one string on the scale sheet, in SI.
+type scaleRow struct {
 	ID             string  `json:"id"`
 	Note           string  `json:"note"`
 	Section        string  `json:"section"`
@@ -50,8 +51,8 @@ type sheetRow struct {
 	StrengthBasis  string  `json:"strength_basis"`
 }
 
-// sectionTotal sums one section, or the whole instrument.
-type sectionTotal struct {
+// scaleTotal sums one section, or the whole instrument.
+type scaleTotal struct {
 	Section   string  `json:"section"`
 	Strings   int     `json:"strings"`
 	TensionN  float64 `json:"tension_n"`
@@ -59,84 +60,116 @@ type sectionTotal struct {
 	MaxMargin float64 `json:"max_margin"`
 }
 
-// sheet is the whole scale sheet; its JSON form is the stable --json output.
-type sheet struct {
-	Instrument    string         `json:"instrument"`
-	Config        string         `json:"config"`
-	ReferenceHz   float64        `json:"reference_hz"`
-	Strings       []sheetRow     `json:"strings"`
-	Sections      []sectionTotal `json:"sections"`
-	TotalTensionN float64        `json:"total_tension_n"`
-	MinMargin     float64        `json:"min_margin"`
-	MaxMargin     float64        `json:"max_margin"`
-	MarginWarn    float64        `json:"margin_warn"`
-	MarginAlarm   float64        `json:"margin_alarm"`
-	MarginLow     float64        `json:"margin_low"`
-	Bases         []materialBase `json:"strength_basis"`
-	Caution       string         `json:"caution,omitempty"`
+// scaleSheet is the whole scale sheet; its JSON form is the stable --json output.
+type scaleSheet struct {
+	Instrument    string       `json:"instrument"`
+	Config        string       `json:"config"`
+	ReferenceHz   float64      `json:"reference_hz"`
+	Strings       []scaleRow   `json:"strings"`
+	Sections      []scaleTotal `json:"sections"`
+	TotalTensionN float64      `json:"total_tension_n"`
+	MinMargin     float64      `json:"min_margin"`
+	MaxMargin     float64      `json:"max_margin"`
+	MarginWarn    float64      `json:"margin_warn"`
+	MarginAlarm   float64      `json:"margin_alarm"`
+	MarginLow     float64      `json:"margin_low"`
+	Bases         []scaleBasis `json:"strength_basis"`
+	Caution       string       `json:"caution,omitempty"`
 }
 
-// materialBase states the strength basis of one core material in use.
-type materialBase struct {
+// scaleBasis states the strength basis of one core material in use.
+type scaleBasis struct {
 	Material string `json:"material"`
 	Basis    string `json:"basis"`
 }
 
-func newSheet(cfg *instrument.Config) *sheet {
+func newScaleSheet(cfg *instrument.Config) *scaleSheet {
 	in := &cfg.Instrument
-	sh := &sheet{
+	sh := &scaleSheet{
 		Instrument: in.Name, Config: cfg.Path, ReferenceHz: in.ReferenceHz,
 		MarginWarn: cfg.Listen.MarginWarn, MarginAlarm: cfg.Listen.MarginAlarm, MarginLow: scaleLowMargin,
 	}
 	seen := map[string]bool{}
 	for i := range in.Strings {
-		r := sheetRowOf(&in.Strings[i], cfg.Listen)
+		r := scaleRowOf(&in.Strings[i], cfg.Listen)
 		sh.Strings = append(sh.Strings, r)
 		if m := in.Strings[i].Phys.Core.Material; !seen[m.Name] {
 			seen[m.Name] = true
-			sh.Bases = append(sh.Bases, materialBase{m.Name, m.Basis})
+			sh.Bases = append(sh.Bases, scaleBasis{m.Name, m.Basis})
 		}
-		if r.Flag == flagWarn || r.Flag == flagAlarm {
+		if r.Flag == scaleFlagWarn || r.Flag == scaleFlagAlarm {
 			sh.Caution = scaleCaution
 		}
 	}
-	all := sumSection("all", sh.Strings)
+	all := scaleSum("all", sh.Strings)
 	sh.TotalTensionN, sh.MinMargin, sh.MaxMargin = all.TensionN, all.MinMargin, all.MaxMargin
-	for _, name := range sectionOrder(sh.Strings) {
-		var rows []sheetRow
+	for _, name := range scaleSections(sh.Strings) {
+		var rows []scaleRow
 		for _, r := range sh.Strings {
 			if r.Section == name {
 				rows = append(rows, r)
 			}
 		}
-		sh.Sections = append(sh.Sections, sumSection(name, rows))
+		sh.Sections = append(sh.Sections, scaleSum(name, rows))
 	}
 	return sh
 }
 
-func sheetRowOf(s *instrument.String, l instrument.Listen) sheetRow {
+func scaleRowOf(s *instrument.String, l instrument.Listen) scaleRow {
 	p := &s.Phys
 	t := p.Tension(s.TargetHz)
-	r := sheetRow{
+	r := scaleRow{
 		ID: s.ID, Note: s.Note, Section: s.Section, TargetHz: s.TargetHz, LengthM: p.LengthM,
 		F0Hz: s.TargetHz, FirstPartialHz: p.FirstPartialHz(s.TargetHz),
-		Construction: construction(p), MassPerMKg: p.MassPerLength(), MassWeighed: p.MeasuredMuKgM > 0,
+		Construction: scaleConstruction(p), MassPerMKg: p.MassPerLength(), MassWeighed: p.MeasuredMuKgM > 0,
 		TensionN: t, BreakingN: p.BreakingLoad(), Margin: p.Margin(t), Inharmonicity: p.Inharmonicity(t),
 		BreakingHz: p.BreakingHz(), StrengthBasis: p.Core.Material.Basis,
 	}
+	// Warn above margin_warn (default 70 %: "the commonly accepted maximum upper
+	// tension limit", and bass strings "never intentionally… exceed 70 %") and alarm
+	// above margin_alarm (default 85 %, about 1.4 semitones below breaking) — trade
+	// figures, reference-values §4.1.
 	switch {
 	case r.Margin > l.MarginAlarm:
-		r.Flag = flagAlarm
+		r.Flag = scaleFlagAlarm
 	case r.Margin > l.MarginWarn:
-		r.Flag = flagWarn
+		r.Flag = scaleFlagWarn
 	case r.Margin < scaleLowMargin:
-		r.Flag = flagLow
+		r.Flag = scaleFlagLow
 	}
 	return r
 }
 
-// sectionOrder lists sections in the order they first appear (lowest string first).
-func sectionOrder(rows []sheetRow) []string {
+// rounded returns a copy with every number rounded to 7 significant digits, so
+// that the JSON output does not change with the last bits of floating point
+// (fused multiply-add on some CPUs).
+func (sh *scaleSheet) rounded() *scaleSheet {
+	c := *sh
+	c.ReferenceHz, c.TotalTensionN = sig7(c.ReferenceHz), sig7(c.TotalTensionN)
+	c.MinMargin, c.MaxMargin = sig7(c.MinMargin), sig7(c.MaxMargin)
+	c.Strings = make([]scaleRow, len(sh.Strings))
+	for i, r := range sh.Strings {
+		for _, p := range []*float64{&r.TargetHz, &r.LengthM, &r.F0Hz, &r.FirstPartialHz, &r.MassPerMKg,
+			&r.TensionN, &r.BreakingN, &r.Margin, &r.Inharmonicity, &r.BreakingHz} {
+			*p = sig7(*p)
+		}
+		c.Strings[i] = r
+	}
+	c.Sections = make([]scaleTotal, len(sh.Sections))
+	for i, t := range sh.Sections {
+		t.TensionN, t.MinMargin, t.MaxMargin = sig7(t.TensionN), sig7(t.MinMargin), sig7(t.MaxMargin)
+		c.Sections[i] = t
+	}
+	return &c
+}
+
+func sig7(x float64) float64 {
+	v, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', 7, 64), 64)
+	return v
+}
+
+// scaleSections lists sections in the order they first appear (lowest string first).
+func scaleSections(rows []scaleRow) []string {
 	var names []string
 	seen := map[string]bool{}
 	for _, r := range rows {
@@ -148,8 +181,8 @@ func sectionOrder(rows []sheetRow) []string {
 	return names
 }
 
-func sumSection(name string, rows []sheetRow) sectionTotal {
-	t := sectionTotal{Section: name, Strings: len(rows), MinMargin: math.Inf(1), MaxMargin: math.Inf(-1)}
+func scaleSum(name string, rows []scaleRow) scaleTotal {
+	t := scaleTotal{Section: name, Strings: len(rows), MinMargin: math.Inf(1), MaxMargin: math.Inf(-1)}
 	for _, r := range rows {
 		t.TensionN += r.TensionN
 		t.MinMargin = math.Min(t.MinMargin, r.Margin)
@@ -161,23 +194,23 @@ func sumSection(name string, rows []sheetRow) sectionTotal {
 	return t
 }
 
-// shortNames are how a material reads in a construction ("steel 1.50 + Cu 1.00 mm").
-var shortNames = map[string]string{
+// scaleShortNames are how a material reads in a construction ("steel 1.50 + Cu 1.00 mm").
+var scaleShortNames = map[string]string{
 	"music_wire": "steel", "phosphor_bronze": "bronze", "copper": "Cu", "fluorocarbon": "fluorocarbon",
 }
 
-func materialLabel(m *tension.Material, wound bool) string {
-	if s, ok := shortNames[m.Name]; ok && (wound || m.Name != "music_wire") {
+func scaleMaterialLabel(m *tension.Material, wound bool) string {
+	if s, ok := scaleShortNames[m.Name]; ok && (wound || m.Name != "music_wire") {
 		return s
 	}
 	return strings.ReplaceAll(m.Name, "_", " ")
 }
 
-// construction describes a string, e.g. "music wire 1.05 mm" or "steel 1.50 + Cu 1.00 mm".
-func construction(p *tension.String) string {
-	parts := []string{fmt.Sprintf("%s %.2f", materialLabel(p.Core.Material, p.Wound()), tension.ToMM(p.Core.DiameterM))}
+// scaleConstruction describes a string, e.g. "music wire 1.05 mm" or "steel 1.50 + Cu 1.00 mm".
+func scaleConstruction(p *tension.String) string {
+	parts := []string{fmt.Sprintf("%s %.2f", scaleMaterialLabel(p.Core.Material, p.Wound()), tension.ToMM(p.Core.DiameterM))}
 	for _, w := range p.Wraps {
-		parts = append(parts, fmt.Sprintf("%s %.2f", materialLabel(w.Material, true), tension.ToMM(w.DiameterM)))
+		parts = append(parts, fmt.Sprintf("%s %.2f", scaleMaterialLabel(w.Material, true), tension.ToMM(w.DiameterM)))
 	}
 	return strings.Join(parts, " + ") + " mm"
 }

@@ -18,6 +18,7 @@ import (
 // compareOptions are the flags of `tautbench compare`.
 type compareOptions struct {
 	quick   bool
+	leadS   float64
 	keyStep int
 	rateHz  int
 	seed    uint64
@@ -67,6 +68,7 @@ func parseCompareFlags(args []string, stderr io.Writer) (compareOptions, error) 
 	fs.SetOutput(stderr)
 	fs.BoolVar(&o.quick, "quick", false, "smaller corpus (every 12th key instead of every 3rd)")
 	fs.IntVar(&o.rateHz, "rate", 48000, "sample rate of the corpus, Hz")
+	fs.Float64Var(&o.leadS, "lead", defaultLeadS, "seconds of silence (or noise) before each tone's onset")
 	fs.Uint64Var(&o.seed, "seed", 1, "corpus seed (detune, B jitter, phases, noise)")
 	fs.StringVar(&o.aubio, "aubio", "aubiopitch", "aubiopitch binary")
 	fs.StringVar(&o.dir, "dir", "", "keep the corpus WAV files in this directory (default: a temporary directory, removed)")
@@ -76,6 +78,9 @@ func parseCompareFlags(args []string, stderr io.Writer) (compareOptions, error) 
 	}
 	if fs.NArg() > 0 {
 		return o, fmt.Errorf("compare: unexpected argument %q", fs.Arg(0))
+	}
+	if !(o.leadS >= 0 && o.leadS <= 10) {
+		return o, fmt.Errorf("compare: -lead %g outside 0..10 s", o.leadS)
 	}
 	if o.rateHz < 22050 || o.rateHz > 192000 {
 		return o, fmt.Errorf("compare: -rate %d outside 22050..192000", o.rateHz)
@@ -128,7 +133,7 @@ func corpusDir(dir string) (string, func(), error) {
 // analyser back to back, so all four see the same file and the same machine load.
 func compare(ctx context.Context, opts compareOptions, bin, dir string, progress io.Writer) (*runResult, error) {
 	rate := float64(opts.rateHz)
-	cases := buildCorpus(opts.keyStep, opts.seed)
+	cases := buildCorpus(opts.keyStep, opts.seed, opts.leadS)
 	paths, err := writeCorpus(cases, dir, opts.rateHz)
 	if err != nil {
 		return nil, err
@@ -140,7 +145,7 @@ func compare(ctx context.Context, opts compareOptions, bin, dir string, progress
 	if res.aubioStart, err = aubioStartCost(ctx, bin, dir, opts.rateHz); err != nil {
 		return nil, err
 	}
-	mine, err := newOurAnalyser(rate, int((leadS+toneS)*rate)+1)
+	mine, err := newOurAnalyser(rate)
 	if err != nil {
 		return nil, err
 	}
@@ -176,7 +181,7 @@ func writeCorpus(cases []testCase, dir string, rateHz int) ([]string, error) {
 
 func measureOne(ctx context.Context, c testCase, path, bin string, rate float64, mine *ourAnalyser, res *runResult) (outcome, error) {
 	out := outcome{c: c, hz: map[string]float64{}}
-	durS := leadS + toneS
+	durS := c.durS()
 	buf := aubioBufFor(c)
 	for _, m := range aubioMethods {
 		frames, cpu, err := runAubio(ctx, bin, path, m, buf)
@@ -187,16 +192,16 @@ func measureOne(ctx context.Context, c testCase, path, bin string, rate float64,
 		sp.audioS += durS
 		sp.cpu += cpu
 		sp.startCPU += res.aubioStart[startKey{m, buf}]
-		if hz, err := steadyMedian(frames, rate, buf, leadS, steadyFromS, steadyToS); err == nil {
+		if hz, err := steadyMedian(frames, rate, buf, c.LeadS, steadyFromS, steadyToS); err == nil {
 			out.hz["aubio "+m] = hz
 		}
 	}
 	t0 := cpuTime()
-	hz, notes, err := mine.measure(path)
+	hz, pitched, err := mine.measure(path)
 	sp := res.speeds[ours]
 	sp.cpu += cpuTime() - t0
 	sp.audioS += durS
-	if notes > 1 {
+	if pitched > 1 {
 		res.multiNotes++
 	}
 	if err != nil {

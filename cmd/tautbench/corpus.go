@@ -9,16 +9,17 @@ import (
 	"taut/pitch/note"
 )
 
-// Corpus layout. Every tone is a stiff string struck or plucked leadS seconds into the
-// file and left to ring for toneS seconds, so onset detection has some room before it.
+// Corpus layout. Every tone is a stiff string struck or plucked LeadS seconds into the
+// file (the -lead flag; default defaultLeadS) and left to ring for toneS seconds, as a
+// recording started a moment before the note would be.
 const (
-	leadS       = 0.1
-	toneS       = 2.0
-	peakLevel   = 0.5 // tones are scaled to this peak before noise is added
-	maxDetuneC  = 30  // cents either side of the 12-TET key
-	minOffGridC = 1   // no first partial closer than this to a 12-TET key
-	firstMIDI   = 21  // A0
-	lastMIDI    = 108 // C8
+	defaultLeadS = 0.3
+	toneS        = 2.0
+	peakLevel    = 0.5 // tones are scaled to this peak before noise is added
+	maxDetuneC   = 30  // cents either side of the 12-TET key
+	minOffGridC  = 1   // no first partial closer than this to a 12-TET key
+	firstMIDI    = 21  // A0
+	lastMIDI     = 108 // C8
 )
 
 // snrClean marks a tone without added noise.
@@ -37,8 +38,9 @@ const (
 
 // testCase is one generated tone with its ground truth.
 type testCase struct {
-	Name      string // e.g. "piano-A0+12c-40dB"
-	MIDI      int    // the key it was detuned from
+	Name      string  // e.g. "piano-A0+12c-40dB"
+	LeadS     float64 // seconds before the onset
+	MIDI      int     // the key it was detuned from
 	Family    family
 	Detune    float64 // cents
 	SNRdB     float64 // +Inf for clean
@@ -72,7 +74,7 @@ func registerOf(hz float64) string {
 // included), each as a piano-like and a harp-like string, each clean and at every SNR.
 // Detune, B jitter, phases and noise all come from seed, so the corpus is identical on
 // every run with the same arguments.
-func buildCorpus(keyStep int, seed uint64) []testCase {
+func buildCorpus(keyStep int, seed uint64, leadS float64) []testCase {
 	rng := rand.New(rand.NewPCG(seed, 0xc0ffee))
 	var out []testCase
 	for _, midi := range corpusKeys(keyStep) {
@@ -81,6 +83,7 @@ func buildCorpus(keyStep int, seed uint64) []testCase {
 			for _, snr := range corpusSNRs {
 				out = append(out, testCase{
 					Name:      caseName(fam, midi, detune, snr),
+					LeadS:     leadS,
 					MIDI:      midi,
 					Family:    fam,
 					Detune:    detune,
@@ -169,9 +172,12 @@ func pianoB(midi int) float64 {
 	return math.Pow(10, -4+math.Log10(5)*float64(c3-midi)/float64(c3-firstMIDI))
 }
 
+// durS is the length of the case's file in seconds.
+func (c testCase) durS() float64 { return c.LeadS + toneS }
+
 // render writes the case's samples (lead silence, tone, noise) into a new slice.
 func (c testCase) render(rateHz float64) []float32 {
-	lead := int(leadS * rateHz)
+	lead := int(c.LeadS * rateHz)
 	x := make([]float32, lead+int(toneS*rateHz))
 	c.Tone.Render(x[lead:], rateHz)
 	normalizePeak(x, peakLevel)

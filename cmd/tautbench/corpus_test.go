@@ -8,7 +8,7 @@ import (
 )
 
 func TestBuildCorpus_Deterministic(t *testing.T) {
-	a, b := buildCorpus(12, 7), buildCorpus(12, 7)
+	a, b := buildCorpus(12, 7, defaultLeadS), buildCorpus(12, 7, defaultLeadS)
 	if len(a) != len(b) {
 		t.Fatalf("lengths %d and %d", len(a), len(b))
 	}
@@ -24,13 +24,13 @@ func TestBuildCorpus_Deterministic(t *testing.T) {
 			t.Fatalf("%s: sample %d differs: %g vs %g", a[4].Name, i, x[i], y[i])
 		}
 	}
-	if c := buildCorpus(12, 8); c[0].Detune == a[0].Detune {
+	if c := buildCorpus(12, 8, defaultLeadS); c[0].Detune == a[0].Detune {
 		t.Errorf("seed 8 gave the same detune as seed 7 (%g)", c[0].Detune)
 	}
 }
 
 func TestBuildCorpus_Coverage(t *testing.T) {
-	cases := buildCorpus(3, 1)
+	cases := buildCorpus(3, 1, defaultLeadS)
 	if got, want := len(cases), 30*2*3; got != want { // A0..C8 every 3rd key is 30 keys
 		t.Fatalf("got %d cases, want %d", got, want)
 	}
@@ -74,7 +74,7 @@ func checkB(t *testing.T, c testCase) {
 
 func TestRender_SNR(t *testing.T) {
 	const rate = 8000
-	c := buildCorpus(12, 1)[2] // piano A0 at 20 dB
+	c := buildCorpus(12, 1, defaultLeadS)[2] // piano A0 at 20 dB
 	if c.SNRdB != 20 {
 		t.Fatalf("case %s is not the 20 dB one", c.Name)
 	}
@@ -90,7 +90,7 @@ func TestRender_SNR(t *testing.T) {
 	if got := 10 * math.Log10(ps/pn); math.Abs(got-20) > 0.5 {
 		t.Errorf("measured SNR %.2f dB, want 20", got)
 	}
-	lead := int(leadS * rate)
+	lead := int(c.LeadS * rate)
 	for i := range lead {
 		if clean[i] != 0 {
 			t.Fatalf("clean lead-in sample %d is %g, want silence", i, clean[i])

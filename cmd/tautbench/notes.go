@@ -36,7 +36,7 @@ func writeCorpusNote(w io.Writer, res *runResult) {
 		"Piano-like: B ≈ 1e-4 at C3 rising to 1e-2 at C8 and to 5e-4 at A0 (±25 %% jitter), first partial 20 dB down "+
 		"below 110 Hz. Harp-like: B log-uniform in 1e-5..1e-4. Every tone starts with an 8 ms noise thump; "+
 		"SNR is the whole file's mean signal power over white-noise power.\n",
-		len(res.outcomes), o.seed, len(keys), o.keyStep, ordinalSuffix(o.keyStep), toneS, leadS, o.rateHz, maxDetuneC)
+		len(res.outcomes), o.seed, len(keys), o.keyStep, ordinalSuffix(o.keyStep), toneS, o.leadS, o.rateHz, maxDetuneC)
 }
 
 func ordinalSuffix(n int) string {
@@ -68,8 +68,8 @@ func writeMethodNotes(w io.Writer, res *runResult) {
 		aubioBuf, aubioHop, aubioBufBass, bassBelowHz, steadyFromS, steadyToS, aubioHop, aubioBuf, aubioBufBass,
 		strings.Join(starts, ", "))
 	fmt.Fprintf(w, "taut: what `taut measure` does without hints, in this process on one goroutine: "+
-		"`capture.ReadWAVFile`, `pitch.Segments` (min %d Hz), `Analyzer.Analyze` on the first note's window; "+
-		"the answer is `Note.FundamentalHz`. CPU = getrusage(RUSAGE_SELF) user + system around those three steps "+
+		"`capture.ReadWAVFile`, `pitch.Segments` (min %d Hz), `Analyzer.Analyze` on every note window it finds; "+
+		"the answer is `Note.FundamentalHz` of the first window with a pitch. CPU = getrusage(RUSAGE_SELF) user + system around all of that "+
 		"(WAV decode and garbage collection included; one analyser reused for all files, as `taut measure` does).\n",
 		ourMinHz)
 }
@@ -98,7 +98,7 @@ func writeTargets(w io.Writer, res *runResult, rows []groupRow) {
 	q := ourRate / perCPUSecond(yf.audioS, yf.cpu)
 	fmt.Fprintf(w, "- speed: taut ≥ %.1f× aubio yinfft: %s (%s)\n", targetSpeedRatio, metWord(q >= targetSpeedRatio), formatRatio(q))
 	if res.multiNotes > 0 {
-		fmt.Fprintf(w, "- note: pitch.Segments found more than one note in %d of %d single-note files (the first was used)\n",
+		fmt.Fprintf(w, "- note: more than one window had a pitch in %d of %d single-tone files (the first was used)\n",
 			res.multiNotes, len(res.outcomes))
 	}
 	for _, f := range res.ourFailures {

@@ -93,8 +93,10 @@ func formatCents(c float64) string {
 	switch {
 	case math.IsInf(c, 1) || math.IsNaN(c):
 		return "—"
-	case c < 0.01:
-		return fmt.Sprintf("%.4f", c)
+	case c == 0:
+		return "0"
+	case c < 0.01: // two significant digits
+		return fmt.Sprintf("%.*f", int(math.Ceil(-math.Log10(c)))+1, c)
 	case c < 0.1:
 		return fmt.Sprintf("%.3f", c)
 	case c < 10:

@@ -89,8 +89,9 @@ func namesFor(key string) []string {
 }
 
 // classify returns the meaning of a column name, or the expectation for a bad one:
-// a known quantity with a unit we do not accept (then the colDef still names the
-// key, so that the column does not also count as missing), or an unknown name.
+// a known quantity with a unit we do not accept, or an unknown name. With a bad name
+// the colDef still names the key the user probably meant, so that it does not also
+// count as missing.
 func classify(name string) (colDef, string) {
 	if d, ok := colDefs[name]; ok {
 		return d, ""
@@ -101,6 +102,10 @@ func classify(name string) (colDef, string) {
 				quoteList(namesFor(key))
 		}
 	}
-	return colDef{}, "unknown column" + suggest(name, columnNames()) +
+	var likely colDef // the column the user probably meant, so it is not also "missing"
+	if c := closest(name, columnNames()); c != "" {
+		likely = colDefs[c]
+	}
+	return likely, "unknown column" + suggest(name, columnNames()) +
 		"; want one of " + strings.Join(columnNames(), ", ")
 }

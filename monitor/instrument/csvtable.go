@@ -81,6 +81,7 @@ func (p *parser) parseCSV(file string, data []byte) []*row {
 func (p *parser) csvHeader(file string, line int, header []string) ([]string, bool) {
 	cols := make([]string, len(header))
 	seen := map[string]string{}
+	guessed := map[string]bool{} // keys a bad column name probably meant
 	ok := true
 	for i, h := range header {
 		name := strings.ToLower(strings.TrimSpace(h))
@@ -90,9 +91,7 @@ func (p *parser) csvHeader(file string, line int, header []string) ([]string, bo
 		if bad != "" {
 			p.c.add(at, name, "%s", bad)
 			ok = false
-			if d.key != "" {
-				seen[d.key] = name
-			}
+			guessed[d.key] = true
 			continue
 		}
 		if prev, dup := seen[d.key]; dup {
@@ -108,14 +107,14 @@ func (p *parser) csvHeader(file string, line int, header []string) ([]string, bo
 		{"core", "core (the core material)"},
 		{"core_d", "core_mm (or core_in)"},
 	} {
-		if _, has := seen[req.key]; !has {
+		if _, has := seen[req.key]; !has && !guessed[req.key] {
 			p.c.add(pos{file: file, line: line, field: "header"}, nil, "missing column; want %s", req.want)
 			ok = false
 		}
 	}
 	_, hasNote := seen["note"]
 	_, hasTarget := seen["target"]
-	if !hasNote && !hasTarget {
+	if !hasNote && !hasTarget && !guessed["note"] && !guessed["target"] {
 		p.c.add(pos{file: file, line: line, field: "header"}, nil, "missing column; want note or target_hz")
 		ok = false
 	}

@@ -100,17 +100,24 @@ func show(v any) string {
 
 // suggest returns ` (did you mean "x"?)` for the candidate closest to name, or "".
 func suggest(name string, candidates []string) string {
+	if best := closest(name, candidates); best != "" {
+		return fmt.Sprintf(" (did you mean %q?)", best)
+	}
+	return ""
+}
+
+// closest returns the candidate within a few edits of name, or "".
+func closest(name string, candidates []string) string {
 	best, bestD := "", 1<<30
 	for _, c := range candidates {
 		if d := editDistance(strings.ToLower(name), c); d < bestD {
 			best, bestD = c, d
 		}
 	}
-	limit := max(2, len(name)/3)
-	if best == "" || bestD > limit {
+	if best == "" || bestD > max(2, len(name)/3) {
 		return ""
 	}
-	return fmt.Sprintf(" (did you mean %q?)", best)
+	return best
 }
 
 // editDistance is the Levenshtein distance between a and b.

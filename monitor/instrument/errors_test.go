@@ -25,6 +25,7 @@ func TestParse_BrokenFiles(t *testing.T) {
 		{"WrapWithoutCore", "wrap_without_core.csv", 3, "row 2", "wrap without core"},
 		{"AboveBreakingPitch", "above_breaking.toml", 6, "string#1.note", "above the breaking pitch 670.67 Hz"},
 		{"UnknownKey", "unknown_key.toml", 4, "listen.tolerence_cents", `unknown key in [listen] (did you mean "tolerance_cents"?)`},
+		{"UpperCaseKey", "upper_case.toml", 4, "listen.Margin_Warn", `keys are lower case; want "margin_warn"`},
 		{"UnknownColumn", "unknown_column.csv", 1, "column 3", `unknown column (did you mean "length_mm"?)`},
 		{"Margins", "margins.toml", 5, "listen.margin_alarm", "margin_alarm 0.75 must be above margin_warn 0.80"},
 		{"PulseOverMax", "pulse.toml", 4, "exciter.pulse", "pulse 80ms is longer than max_pulse 50ms"},

@@ -69,6 +69,7 @@ func parse(fsys fs.FS, name, dir string) (*Config, error) {
 		return nil, p.c.err()
 	}
 	p.undecoded(md.Undecoded())
+	p.upperCase(md.Keys())
 	cfg := p.build(&raw)
 	if len(p.c.list) > 0 {
 		for _, fe := range p.c.list {
@@ -161,6 +162,23 @@ func (p *parser) undecoded(keys []toml.Key) {
 		}
 		p.c.add(pos{file: p.file, line: line, field: plain}, nil,
 			"unknown key in %s%s", where, suggest(k[len(k)-1], knownKeys[table]))
+	}
+}
+
+// upperCase reports keys written with capitals: the decoder matches struct fields
+// without regard to case, but our keys are lower case everywhere.
+func (p *parser) upperCase(keys []toml.Key) {
+	seen := map[string]int{}
+	for _, k := range keys {
+		plain := strings.Join(k, ".")
+		n := seen[plain]
+		seen[plain]++
+		last := k[len(k)-1]
+		if len(k) == 2 && k[0] == "materials" || k[0] == "string" || last == strings.ToLower(last) {
+			continue // material names and string columns are checked where they are read
+		}
+		p.c.add(pos{file: p.file, line: p.loc.nth(plain, n), field: plain}, nil,
+			"keys are lower case; want %q", strings.ToLower(last))
 	}
 }
 

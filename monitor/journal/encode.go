@@ -14,8 +14,9 @@ import (
 // encoding/json.Marshal would produce for monitor.Entry (field order, omitempty, number and
 // string formats; a test holds it to that), without reflection or allocation.
 //
-// It refuses values that would not read back as the same entry: NaN or infinite numbers,
-// a state without a name, a year outside 0–9999 or a zone offset of 24 hours or more.
+// It refuses values that would not read back as the same entry: an empty kind, NaN or
+// infinite numbers, a state without a name, a year outside 0–9999 or a zone offset of 24
+// hours or more.
 // A zone offset with a seconds part (historic local mean time) is written in UTC, since
 // RFC 3339 offsets have minutes only and the instant would otherwise shift.
 func appendEntry(dst []byte, e *monitor.Entry) ([]byte, error) {
@@ -87,21 +88,24 @@ func checkEntry(e *monitor.Entry) error {
 	}
 	for _, f := range floats {
 		if math.IsNaN(f.v) || math.IsInf(f.v, 0) {
-			return fmt.Errorf("journal: field %s is %v (want a finite number)", f.name, f.v)
+			return fmt.Errorf("field %s is %v (want a finite number)", f.name, f.v)
 		}
 	}
+	if e.Kind == "" {
+		return fmt.Errorf("field kind is empty (want reading, state, gap, ...)")
+	}
 	if e.State > monitor.Alarm {
-		return fmt.Errorf("journal: field state is %v (want quiet, settling, steady, off-target or alarm)", e.State)
+		return fmt.Errorf("field state is %v (want quiet, settling, steady, off-target or alarm)", e.State)
 	}
 	if e.Prev != nil && *e.Prev > monitor.Alarm {
-		return fmt.Errorf("journal: field prev_state is %v (want quiet, settling, steady, off-target or alarm)", *e.Prev)
+		return fmt.Errorf("field prev_state is %v (want quiet, settling, steady, off-target or alarm)", *e.Prev)
 	}
 	t := wireTime(e.Time)
 	if y := t.Year(); y < 0 || y > 9999 {
-		return fmt.Errorf("journal: field time has year %d (want 0 to 9999)", y)
+		return fmt.Errorf("field time has year %d (want 0 to 9999)", y)
 	}
 	if _, off := t.Zone(); off <= -24*3600 || off >= 24*3600 {
-		return fmt.Errorf("journal: field time has zone offset %ds (want under 24 hours)", off)
+		return fmt.Errorf("field time has zone offset %ds (want under 24 hours)", off)
 	}
 	return nil
 }

@@ -12,6 +12,7 @@ import (
 	"testing"
 	"time"
 
+	"taut/monitor"
 	"taut/monitor/journal"
 )
 
@@ -20,8 +21,9 @@ var kills = flag.Int("journal.kills", 10, "kill -9 rounds in TestKillLoop (e.g. 
 const killDirEnv = "TAUT_JOURNAL_KILL_DIR"
 
 // TestHelperProcess is the child of TestKillLoop: it opens the journal, reports what it
-// recovered, then appends a known sequence of entries and prints each seq once it is
-// committed ("synced N"), until it is killed. It does nothing in a normal test run.
+// recovered, then appends a known sequence of entries and prints each seq once Append has
+// returned ("appended N") and once it is committed ("synced N"), until it is killed. It
+// does nothing in a normal test run.
 func TestHelperProcess(t *testing.T) {
 	dir := os.Getenv(killDirEnv)
 	if dir == "" {
@@ -42,7 +44,8 @@ func TestHelperProcess(t *testing.T) {
 			fmt.Printf("error %v\n", err)
 			os.Exit(3)
 		}
-		if e.State == 4 { // alarm: committed before Append returned
+		fmt.Printf("appended %d\n", e.Seq)
+		if e.State == monitor.Alarm { // committed before Append returned
 			fmt.Printf("synced %d\n", e.Seq)
 		} else if rng.IntN(6) == 0 {
 			if err := w.Sync(); err != nil {
@@ -57,7 +60,9 @@ func TestHelperProcess(t *testing.T) {
 
 // TestKillLoop kills a writer with SIGKILL at random points, over and over, and checks
 // after each kill that the journal parses, seq is continuous, every entry is the one
-// written with that seq, and every entry acknowledged as committed is there.
+// written with that seq, every entry acknowledged as committed is there, and so is every
+// entry Append returned from: kill -9 cannot take bytes already written to the kernel, so
+// a missing one would mean user-space buffering.
 func TestKillLoop(t *testing.T) {
 	n := *kills
 	if testing.Short() {
@@ -89,8 +94,8 @@ func TestKillLoop(t *testing.T) {
 			}
 		}
 		last = uint64(len(entries))
-		if r.maxAck > last {
-			t.Fatalf("kill %d: seq %d was acknowledged as committed, journal ends at %d", k, r.maxAck, last)
+		if r.maxAck > last || r.maxAppended > last {
+			t.Fatalf("kill %d: seq %d was committed and %d appended, journal ends at %d", k, r.maxAck, r.maxAppended, last)
 		}
 		acks += r.acks
 	}
@@ -99,6 +104,12 @@ func TestKillLoop(t *testing.T) {
 	if rec.LastSeq != last {
 		t.Fatalf("final open recovered %d, want %d", rec.LastSeq, last)
 	}
+	// State resumes: the history is each string's latest entries from the segments read.
+	all, _, err := journal.Load(dir)
+	if err != nil || rec.Report.FirstSeq == 0 {
+		t.Fatalf("load: %v; recovery read %s", err, rec.Report)
+	}
+	assertEntries(t, rec.Entries, expectedHistory(all[rec.Report.FirstSeq-1:], journal.DefaultRecoverReadings, 16))
 	t.Logf("%d kills survived: %d entries, %d commits acknowledged and found, %d torn tails seen, %d repaired by the next start",
 		n, last, acks, torn, repairs+rec.Repairs)
 }
@@ -108,6 +119,8 @@ type killResult struct {
 	repairs   int
 	acks      int
 	maxAck    uint64
+	// maxAppended is the last seq Append returned from.
+	maxAppended uint64
 }
 
 // killOnce runs a child, waits for a random number of commit acknowledgements and a
@@ -168,6 +181,9 @@ func parseChildLine(t *testing.T, line string, r *killResult) {
 		fmt.Sscanf(line, "synced %d", &a)
 		r.acks++
 		r.maxAck = max(r.maxAck, a)
+	case strings.HasPrefix(line, "appended "):
+		fmt.Sscanf(line, "appended %d", &a)
+		r.maxAppended = max(r.maxAppended, a)
 	case strings.HasPrefix(line, "open "):
 		fmt.Sscanf(line, "open %d %d", &a, &b)
 		r.recovered, r.repairs = a, int(b)

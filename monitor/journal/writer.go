@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"io/fs"
+	"math"
 	"os"
 	"path/filepath"
 	"sync"
@@ -18,7 +19,7 @@ import (
 // *fs.PathError carrying syscall.ENOSPC, say), so errors.Is works for both.
 var (
 	ErrClosed  = errors.New("journal: writer closed")
-	ErrInvalid = errors.New("journal: entry cannot be written faithfully")
+	ErrInvalid = errors.New("journal: invalid entry")
 	ErrHeld    = errors.New("journal: entry held in memory, not yet written")
 	ErrDropped = errors.New("journal: backlog full, entry dropped")
 )
@@ -64,14 +65,17 @@ type Writer struct {
 // tail, and returns a Writer that appends to a new segment, with what was recovered.
 func Open(dir string, opts Options) (*Writer, *Recovery, error) {
 	opts = opts.withDefaults()
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, nil, fmt.Errorf("open journal: create directory %s: %w", dir, err)
+	if err := ensureDir(dir, opts.FS); err != nil {
+		return nil, nil, fmt.Errorf("open journal: %w", err)
 	}
 	lock, err := lockDir(dir)
 	if err != nil {
 		return nil, nil, fmt.Errorf("open journal: %w", err)
 	}
 	rec, err := recoverDir(dir, opts)
+	if err == nil && rec.LastSeq == math.MaxUint64 {
+		err = fmt.Errorf("last seq %d in %s leaves no seq for new entries", rec.LastSeq, dir)
+	}
 	if err != nil {
 		lock.Close()
 		return nil, rec, fmt.Errorf("open journal: %w", err)
@@ -89,6 +93,21 @@ func Open(dir string, opts Options) (*Writer, *Recovery, error) {
 	}
 	go w.run()
 	return w, rec, nil
+}
+
+// ensureDir creates dir if it is missing and fsyncs its parent, so that the directory
+// itself survives a power cut along with the segments in it.
+func ensureDir(dir string, fsys FS) error {
+	if _, err := os.Stat(dir); err == nil {
+		return nil
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return fmt.Errorf("create directory %s: %w", dir, err)
+	}
+	if err := fsys.SyncDir(filepath.Dir(dir)); err != nil {
+		return fmt.Errorf("fsync directory %s: %w", filepath.Dir(dir), err)
+	}
+	return nil
 }
 
 // startSegment opens the segment new entries go to: the newest one if it is empty and
@@ -145,7 +164,7 @@ func (w *Writer) Append(e *monitor.Entry) error {
 	if err != nil {
 		e.Seq = old
 		w.mu.Unlock()
-		return fmt.Errorf("journal: append: %w: %w", ErrInvalid, err)
+		return fmt.Errorf("%w: %w", ErrInvalid, err)
 	}
 	w.buf = line[:0]
 	w.nextSeq++

@@ -147,3 +147,12 @@ func (c *JumpClock) Now() time.Time {
 	defer c.mu.Unlock()
 	return c.FakeClock.Now().Add(c.offset)
 }
+
+// Since returns the elapsed time since t without the jumps, as Go's monotonic clock
+// does for a time.Time read from time.Now. It holds for t read from Now after the
+// latest jump.
+func (c *JumpClock) Since(t time.Time) time.Duration {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	return c.FakeClock.Now().Sub(t.Add(-c.offset))
+}

@@ -108,7 +108,7 @@ func Build(entries []monitor.Entry, opts Options) *Report {
 	}
 	r.placeStrings(opts.Config, byID)
 	for _, s := range r.Strings {
-		s.analyse(r.Limits)
+		s.analyse(r.Limits, opts.Config != nil)
 	}
 	r.Load = totalLoad(r.Readings)
 	r.Bases = bases(r.Strings)
@@ -173,7 +173,7 @@ func (r *Report) placeStrings(cfg *instrument.Config, byID map[string]*String) {
 
 // runClock maps entries onto one time axis from each run's monotonic clock.
 type runClock struct {
-	anchor             map[string]time.Time // wall time of MonoS = 0 of each run
+	anchor            map[string]time.Time // wall time of MonoS = 0 of each run
 	origin, end, last time.Time
 }
 

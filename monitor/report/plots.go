@@ -19,9 +19,12 @@ func (r *Report) stringPlot(s *String, hoursMax float64) string {
 	tol := r.Limits.ToleranceCents
 	lo, hi = niceRange(lo, hi, 0.12, -tol, tol)
 	p := newPlot(400, 170, 0, hoursMax, lo, hi)
-	p.band(-tol, tol, "band")
 	p.frame("hours since first reading", "cents", fmtNum(0), fmtNum(0))
+	p.band(-tol, tol, "band")
 	p.hline(0, "target", "")
+	if a, ok := s.alarms["partials"]; ok && finite(a.hours) {
+		p.vline(a.hours, "alarm-line", "partials shifted")
+	}
 	p.fitted(an)
 	out := outlierSet(an.Events)
 	for i, pt := range an.Points {
@@ -113,8 +116,8 @@ func (r *Report) centsPlot() string {
 	b := r.newBarPlot(230, lo, hi)
 	b.printf(`<defs><pattern id="hatch-cents" width="5" height="5" patternUnits="userSpaceOnUse" patternTransform="rotate(45)">` +
 		`<line class="hatch" x1="0" y1="0" x2="0" y2="5"/></pattern></defs>`)
-	b.band(-tol, tol, "band")
 	b.frame("", "cents now", nil, fmtNum(0))
+	b.band(-tol, tol, "band")
 	b.hline(0, "target", "")
 	for i, s := range r.Strings {
 		c := s.Analysis.CentsNow

@@ -125,7 +125,7 @@ func (s *String) medianHz() float64 {
 }
 
 // analyse runs the settling analysis and sets flags, warnings, reasons and class.
-func (s *String) analyse(l Limits) {
+func (s *String) analyse(l Limits, haveConfig bool) {
 	for _, e := range s.states {
 		s.noteState(e, math.NaN())
 	}
@@ -137,7 +137,7 @@ func (s *String) analyse(l Limits) {
 		s.Analysis, s.Analysed = an, err == nil
 	}
 	s.BEarly, s.BLate = quarterMedians(s.bs)
-	s.judge(l)
+	s.judge(l, haveConfig)
 }
 
 // quarterMedians returns the median of the first and of the last quarter of xs
@@ -171,11 +171,11 @@ func (s *String) warn(w, reason string) {
 // judge decides flags and warnings. Flags: margin over the alarm share (measured or
 // alarmed by the listener), a slip (a step found by the analysis or a jump alarm of
 // the listener), a partial shift (alarmed by the listener).
-func (s *String) judge(l Limits) {
+func (s *String) judge(l Limits, haveConfig bool) {
 	s.judgeMargin(l)
 	s.judgeSlip()
 	s.judgePartials()
-	if !s.InConfig {
+	if haveConfig && !s.InConfig {
 		s.warn(WarnUnknown, "heard but not in the config: no target or string data")
 	}
 	if s.Readings == 0 {

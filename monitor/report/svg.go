@@ -94,6 +94,21 @@ func (p *plot) hline(y float64, class, label string) {
 	}
 }
 
+// vline draws a vertical rule at data x with a label near its top.
+func (p *plot) vline(x float64, class, label string) {
+	if x < p.x0 || x > p.x1 {
+		return
+	}
+	p.printf(`<line class="%s" x1="%.1f" x2="%.1f" y1="%.1f" y2="%.1f"/>`, class, p.X(x), p.X(x), p.top, p.h-p.bottom)
+	if label != "" {
+		anchor, dx := "start", 3.0
+		if p.X(x) > (p.left+p.w-p.right)/2 {
+			anchor, dx = "end", -3
+		}
+		p.text(p.X(x)+dx, p.top+10, label, anchor, "rule-label")
+	}
+}
+
 // polyline draws the points (xs[i], ys[i]), skipping non-finite ones.
 func (p *plot) polyline(xs, ys []float64, class string) {
 	var pts []string
@@ -153,7 +168,11 @@ func niceRange(lo, hi, pad float64, include ...float64) (float64, float64) {
 	if !finite(lo) || !finite(hi) {
 		return -1, 1
 	}
-	span := math.Max(hi-lo, 1e-9)
+	span := hi - lo
+	if span < 1e-6*math.Max(math.Abs(lo), math.Abs(hi)) || span == 0 {
+		half := math.Max(0.02*math.Abs(hi), 0.5) // a flat series: show it mid-frame
+		return lo - half, hi + half
+	}
 	return lo - pad*span, hi + pad*span
 }
 

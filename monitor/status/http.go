@@ -140,6 +140,7 @@ func (s *Server) ServeListener(ctx context.Context, ln net.Listener) error {
 		MaxHeaderBytes:    16 << 10,
 	}
 	srv.RegisterOnShutdown(s.StopStreams)
+	s.addr.Store(ln.Addr())
 	errc := make(chan error, 1)
 	go func() { errc <- srv.Serve(ln) }()
 	select {
@@ -158,4 +159,11 @@ func (s *Server) ServeListener(ctx context.Context, ln net.Listener) error {
 		err = errors.Join(err, serr)
 	}
 	return err
+}
+
+// Addr is the address ServeListener serves on (nil before it starts), e.g. to print
+// the URL when the port was chosen by the system (":0").
+func (s *Server) Addr() net.Addr {
+	a, _ := s.addr.Load().(net.Addr)
+	return a
 }

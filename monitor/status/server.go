@@ -2,6 +2,7 @@ package status
 
 import (
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/jonboulle/clockwork"
@@ -101,6 +102,7 @@ type Server struct {
 
 	stop     chan struct{} // closed by StopStreams
 	stopOnce sync.Once
+	addr     atomic.Value // net.Addr once serving
 
 	reg   *prometheus.Registry
 	fsync prometheus.Histogram

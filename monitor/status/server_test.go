@@ -103,9 +103,9 @@ func TestHandler_page(t *testing.T) {
 		wantBody []string
 		notBody  []string
 	}{
-		{"/", []string{"<title>Workshop upright, tenor (demo) · taut</title>", `class=""`, `href="/?display=wall"`, "taut v1.2.3", "Caution: high tension", "maker's specification and local professional practice"}, []string{"display-wall"}},
-		{"/?display=wall", []string{`class="display-wall"`, `href="/">normal view`}, nil},
-		{"/?display=<script>", []string{`class=""`}, []string{"<script>\""}},
+		{"/", []string{"<title>Workshop upright, tenor (demo) · taut</title>", `<html lang="en">`, `href="/?display=wall"`, "taut v1.2.3", "Caution: high tension", "maker's specification and local professional practice"}, []string{"display-wall"}},
+		{"/?display=wall", []string{`<html lang="en" class="display-wall">`, `href="/">normal view`}, nil},
+		{"/?display=<script>", []string{`<html lang="en">`}, []string{"<script>\""}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.target, func(t *testing.T) {
@@ -207,7 +207,11 @@ func TestServer_Health(t *testing.T) {
 		{"not wired", nil, 503, "no listener statistics: the status server is not wired to a listener"},
 		{"no frames yet", func() Stats { return Stats{} }, 503, "audio: no frames received yet"},
 		{"frames stopped", func() Stats { return Stats{LastFrame: t0.Add(-42 * time.Second)} }, 503, "audio: no frames for 42s (limit 10s)"},
-		{"journal failing", func() Stats { s := ok; s.JournalLastError = "write journal-0001.jsonl: no space left on device"; return s }, 503,
+		{"journal failing", func() Stats {
+			s := ok
+			s.JournalLastError = "write journal-0001.jsonl: no space left on device"
+			return s
+		}, 503,
 			"journal: write journal-0001.jsonl: no space left on device"},
 		{"journal backlog", func() Stats { s := ok; s.JournalBacklog = 12; return s }, 503, "journal: 12 entries waiting to be written"},
 		{"past errors only", func() Stats { s := ok; s.JournalWriteErrors = 3; return s }, 200, "ok: audio frames flowing, journal written"},

@@ -41,6 +41,15 @@
     return svg;
   }
 
+  // noteOf is the note name when it adds something to the string id ("C4a" → "C4").
+  function noteOf(s) {
+    return s.note && s.note !== s.id ? el("span", { class: "note" }, s.note) : null;
+  }
+
+  function highTensionBadge(level) {
+    return el("span", { class: "state margin-" + level }, shape("margin"), level === "alarm" ? "tension over limit" : "high tension");
+  }
+
   function stateBadge(s) {
     return el("span", { class: "state st-" + s }, shape(s), LABEL[s] || s);
   }
@@ -51,26 +60,27 @@
     if (Number(t) === 0) return "±" + t;
     return (v < 0 ? "−" : "+") + t;
   }
-  const fmtCents = (c) => signed(c, 1) + " ¢";
-  const fmtRate = (r) => signed(r, 1) + " ¢/h";
-  const fmtN = (n) => Math.round(n).toLocaleString("en") + " N";
-  const fmtPct = (m) => Math.round(m * 100) + " %";
-  const fmtHz = (f) => f.toFixed(f < 100 ? 2 : 1) + " Hz";
+  const NB = "\u00a0"; // a number never wraps away from its unit
+  const fmtCents = (c) => signed(c, 1) + NB + "¢";
+  const fmtRate = (r) => signed(r, 1) + NB + "¢/h";
+  const fmtN = (n) => Math.round(n).toLocaleString("en") + NB + "N";
+  const fmtPct = (m) => Math.round(m * 100) + NB + "%";
+  const fmtHz = (f) => f.toFixed(f < 100 ? 2 : 1) + NB + "Hz";
 
   function fmtAge(ms) {
     const s = Math.max(0, Math.round(ms / 1000));
-    if (s < 60) return s + " s ago";
+    if (s < 60) return s + NB + "s ago";
     const m = Math.round(s / 60);
-    if (m < 90) return m + " min ago";
+    if (m < 90) return m + NB + "min ago";
     const h = m / 60;
-    return (h < 10 ? h.toFixed(1) : Math.round(h)) + " h ago";
+    return (h < 10 ? h.toFixed(1) : Math.round(h)) + NB + "h ago";
   }
 
   function fmtDuration(ms) {
     const m = Math.round(ms / 60000);
     if (m < 1) return "under a minute";
-    if (m < 90) return m + " min";
-    return (m / 60).toFixed(1) + " h";
+    if (m < 90) return m + NB + "min";
+    return (m / 60).toFixed(1) + NB + "h";
   }
 
   function fmtClock(iso) {
@@ -92,8 +102,8 @@
     const m = marginLevel(s);
     if (s.state === "alarm") return 0;
     if (m === "alarm") return 1;
-    if (s.state === "off-target") return 2;
-    if (m === "warn") return 3;
+    if (m === "warn") return 2; // a safety matter ranks above a tuning one
+    if (s.state === "off-target") return 3;
     if (s.state === "settling") return 4;
     return null;
   }
@@ -110,7 +120,7 @@
     }
     if (marginLevel(s)) return "Tension at " + pct + " of the estimated breaking load.";
     if (s.state === "off-target") {
-      return "Settled " + Math.abs(s.cents).toFixed(1) + " ¢ " + (s.cents < 0 ? "flat" : "sharp") + " of its target.";
+      return "Settled " + Math.abs(s.cents).toFixed(1) + NB + "¢ " + (s.cents < 0 ? "flat" : "sharp") + " of its target.";
     }
     if (s.state === "settling") return "Still moving at " + fmtRate(s.rate_cents_per_hour) + ".";
     return "";
@@ -140,9 +150,11 @@
       if (s.tension_n) figs.push(fmtN(s.tension_n));
       const age = ageOf(s);
       if (age) figs.push("heard " + age);
-      return el("li", { class: "card st-" + s.state, "data-string": s.id },
-        el("div", { class: "id" }, s.id, el("span", { class: "note" }, s.note)),
-        stateBadge(s.state),
+      const m = marginLevel(s);
+      const marginFirst = m && s.state !== "alarm"; // the card is about the tension
+      return el("li", { class: "card " + (marginFirst ? "margin-" + m : "st-" + s.state), "data-string": s.id },
+        el("div", { class: "id" }, s.id, noteOf(s)),
+        el("div", { class: "badges" }, marginFirst ? highTensionBadge(m) : null, stateBadge(s.state)),
         el("p", { class: "why" }, why(s)),
         el("p", { class: "figs" }, figs.join(" · ")));
     });
@@ -163,15 +175,18 @@
   function renderRows(strings) {
     const rows = strings.map((s) => {
       const m = marginLevel(s);
-      const cls = ["st-" + s.state, s.heard ? "" : "unheard", m ? "margin-" + m : ""].filter(Boolean).join(" ");
+      const cls = [s.state === "alarm" ? "row-alarm" : "", s.heard ? "" : "unheard", m ? "margin-" + m : ""].filter(Boolean).join(" ");
       const dash = "–";
       return el("tr", { class: cls, "data-string": s.id, "data-state": s.state },
-        el("th", { scope: "row" }, s.id, el("span", { class: "note" }, s.note)),
+        el("th", { scope: "row" }, s.id, noteOf(s)),
         el("td", {}, stateBadge(s.state)),
-        el("td", { class: "num" }, s.heard ? el("span", { class: "dev st-" + s.state }, devBar(s.cents), fmtCents(s.cents)) : dash),
-        el("td", { class: "num" }, s.heard ? fmtRate(s.rate_cents_per_hour) : dash),
-        el("td", { class: "num" }, s.heard && s.tension_n ? fmtN(s.tension_n) : dash),
-        el("td", { class: "num margin" }, s.heard && s.margin ? (m ? "▲ " : "") + fmtPct(s.margin) : dash),
+        // On a phone the drift and tension columns fold under cents and margin (.narrow).
+        el("td", { class: "num" }, s.heard ? el("span", { class: "dev st-" + s.state }, devBar(s.cents), fmtCents(s.cents)) : dash,
+          s.heard ? el("small", { class: "narrow" }, fmtRate(s.rate_cents_per_hour)) : null),
+        el("td", { class: "num wide" }, s.heard ? fmtRate(s.rate_cents_per_hour) : dash),
+        el("td", { class: "num wide" }, s.heard && s.tension_n ? fmtN(s.tension_n) : dash),
+        el("td", { class: "num margin" }, s.heard && s.margin ? el("span", {}, m ? shape("margin") : null, " " + fmtPct(s.margin)) : dash,
+          s.heard && s.tension_n ? el("small", { class: "narrow" }, fmtN(s.tension_n)) : null),
         el("td", { class: "num opt" }, s.heard && s.f0_hz ? fmtHz(s.f0_hz) : fmtHz(s.target_hz) + " target"),
         el("td", { class: "num opt" }, ageOf(s) || "not yet"));
     });
@@ -185,6 +200,7 @@
         stateBadge(s.state),
         el("span", { class: "cents" }, s.heard ? fmtCents(s.cents) : "–")));
     $("tiles").replaceChildren(...tiles);
+    $("tiles").classList.toggle("many", strings.length > 60); // a piano: smaller tiles, shape without the word
   }
 
   function eventText(e) {
@@ -217,11 +233,10 @@
     $("caution").hidden = high.length === 0;
     if (!high.length) return;
     const top = high[0];
-    const n = high.length === 1 ? "1 string is" : high.length + " strings are";
-    $("caution-text").textContent = n + " above " + fmtPct(state.snap.margin_warn) +
-      " of the estimated breaking load (highest: " + top.id + " at " + fmtPct(top.margin) + ").";
+    const others = high.length === 1 ? "" : " (" + high.length + " strings above " + fmtPct(state.snap.margin_warn) + ")";
+    $("caution-text").textContent = top.id + " is at " + fmtPct(top.margin) + " of its estimated breaking load" + others + ".";
     const bases = [...new Set(high.map((s) => [s.material, s.strength_basis].filter(Boolean).join(": ")).filter(Boolean))];
-    $("caution-basis").textContent = bases.length ? "strength basis — " + bases.join("; ") : "no strength basis given";
+    $("caution-basis").textContent = bases.length ? "strength basis: " + bases.join("; ") : "no strength basis given";
   }
 
   function renderStale() {
@@ -248,7 +263,7 @@
     const link = $("link");
     link.classList.toggle("live", state.connected);
     link.classList.toggle("lost", !state.connected && state.lostSince !== null && Date.now() - state.lostSince >= LOST_AFTER_MS);
-    $("link-text").textContent = state.connected ? "live" : "reconnecting…";
+    $("link-text").textContent = state.connected ? "connected" : "reconnecting…";
   }
 
   function render() {

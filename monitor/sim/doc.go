@@ -1,0 +1,43 @@
+// Package sim plans a simulated night of settling for the demo and plays it into a
+// synthetic audio source, so that the real pipeline (capture → pitch → monitor →
+// journal → lamps → report) can be run end to end without an instrument.
+//
+// # The settling model
+//
+// Every string starts within ±1 cent of its target and then sags by log-time creep,
+//
+//	c(t) = c0 − b·ln(1 + t/t0),
+//
+// with a magnitude b that depends on the construction: nylon 6–9 cents per unit of
+// ln(1 + t/t0), fluorocarbon 4–6, gut 2.5–4, wound strings 0.4–0.9, plain steel
+// 0.3–0.7; t0 is 0.2–0.8 h. Polymer strings creep far more than gut, and gut more
+// than metal (viscoelastic creep; reference-values §4.3 suggests the log-time form
+// and notes that steel settles mostly by slips at bearing points). The ranges are
+// invented for the demo, not measured.
+//
+// Midway through the night the restorer does one pull-up pass: every string flatter
+// than 3 cents is raised by −c/(1−s), s being the trade share a raise is expected to
+// give back (~30 % treble, ~10 % bass; reference-values §4.3, common practice). The
+// raised stretch then creeps back by the string's own share of the raise over about
+// 12 hours (nylon ~35 %, gut ~25 %, wound and steel ~10–12 %, ±15 % per string).
+//
+// Each reading also wanders by a seeded 0.12 cents, and the room adds white noise.
+//
+// # Injected faults
+//
+//   - margin: the wound string with the highest margin is fitted with a lighter core,
+//     found by bisection so that at pitch it runs 5 points over the alarm share; the
+//     config the listener gets records the fitted core, so its margin alarms.
+//   - winding: a wound string's winding loosens a little past the middle of the night:
+//     its inharmonicity B doubles over an hour while its pitch falls 1.5 cents.
+//   - slip: a plain string near the middle of the scale slips at its pin late in the
+//     night (after the pull-up): a sudden drop of 35 cents, past the listener's
+//     25-cent jump threshold.
+//
+// # Audio
+//
+// Each strike is a synth.Tone (stiff-string partials f_n = n·f0·√(1 + B·n²), Fletcher
+// 1964) at the string's simulated pitch and B, with decaying partials and a short
+// thump, followed by rendered silence; the time between rounds is skipped, not
+// rendered, so a night costs only its strikes. All randomness is seeded.
+package sim
