@@ -27,8 +27,9 @@
 // and, after an onset, skips the attack and collects an analysis window. The window
 // length and the analyser's search range (pitch.Hint) come from the candidate strings'
 // predicted pitches widened by 200 cents: a short window for treble strings, and the
-// analyser never considers pitches no candidate could have. Windows with clipped
-// samples (|x| ≥ 0.999) are not analysed; the clipping is logged at most once a minute.
+// analyser never considers pitches no candidate could have. A window with more than
+// 1 % of its samples clipped (|x| ≥ 0.999, counted before the DC blocker) is not
+// analysed; the clipping is logged at most once a minute.
 //
 // # Matching a note to a string
 //

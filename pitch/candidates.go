@@ -1,12 +1,12 @@
 package pitch
 
 const (
-	minComplete = 0.5 // a series with fewer of its partials found is checked against alternatives
-	maxCands    = 8
+	minExplained = 0.9 // a series that leaves more of the spectrum's lines unexplained is checked against alternatives
+	maxCands     = 8
 )
 
 // bestCandidate is the slow path, taken when YIN found no dip below its threshold or
-// the partial series it led to is sparse or missing. It weighs YIN's estimate (whose
+// the partial series it led to is missing or leaves strong spectral lines unexplained. It weighs YIN's estimate (whose
 // refinement res and err already hold), YIN's other deep dips, and the strongest peak
 // of the spectrum taken as partial 1, 2 or 3, and returns the start frequency whose
 // partial series holds the most power. The octave check inside refine settles the

@@ -13,6 +13,7 @@ const (
 	onsetRefractoryS = 0.1   // no second onset within this time
 	onsetLocate      = 0.3   // the onset is the first sample reaching this share of the block's peak
 	attackSkipS      = 0.05  // attack transient skipped before analysis, seconds
+	maxHop           = 1024  // longest block (5 ms up to 204.8 kHz)
 )
 
 // OnsetDetector finds note onsets in a stream of samples. It compares the power of
@@ -26,8 +27,8 @@ type OnsetDetector struct {
 	refractory int
 	fill       int
 	prev       float64
-	hf, lf     float64   // sums of squares in the current block: difference, signal
-	absD, absX []float64 // |difference| and |signal| of the current block's samples
+	hf, lf     float64         // sums of squares in the current block: difference, signal
+	absD, absX [maxHop]float64 // |difference| and |signal| of the current block's samples
 	histHF     [onsetHistory]float64
 	histLF     [onsetHistory]float64
 	ring       int
@@ -39,17 +40,18 @@ type OnsetDetector struct {
 // NewOnsetDetector returns a detector for samples at rateHz. It panics if rateHz is not
 // a positive number (a caller bug).
 func NewOnsetDetector(rateHz float64) *OnsetDetector {
+	d := new(OnsetDetector)
+	d.init(rateHz)
+	return d
+}
+
+func (d *OnsetDetector) init(rateHz float64) {
 	if !(rateHz > 0) || math.IsInf(rateHz, 0) {
 		panic(fmt.Sprintf("pitch: NewOnsetDetector: rate %v Hz: want a positive number", rateHz))
 	}
-	hop := max(1, int(math.Round(onsetHopS*rateHz)))
-	return &OnsetDetector{
-		hop:        hop,
-		refractory: int(math.Ceil(onsetRefractoryS * rateHz / float64(hop))),
-		absD:       make([]float64, hop),
-		absX:       make([]float64, hop),
-		last:       -1,
-	}
+	d.hop = min(maxHop, max(1, int(math.Round(onsetHopS*rateHz))))
+	d.refractory = int(math.Ceil(onsetRefractoryS * rateHz / float64(d.hop)))
+	d.last = -1
 }
 
 // Push feeds the next block of samples and returns the index in block of the first
@@ -104,9 +106,9 @@ func (d *OnsetDetector) endBlock() bool {
 	byHF, byLF := hf > onsetRise*refHF, lf > onsetRise*refLF
 	onset := d.quiet == 0 && lf >= onsetFloor && (byHF || byLF)
 	if onset {
-		act := d.absX
+		act := d.absX[:d.hop]
 		if byHF {
-			act = d.absD
+			act = d.absD[:d.hop]
 		}
 		d.last = d.pos - int64(d.hop) + int64(firstAbove(act, onsetLocate))
 		d.quiet = d.refractory

@@ -20,13 +20,14 @@ type partialEst struct {
 	n               int
 	hz, db, snr, sd float64 // frequency, level, peak-to-floor power ratio, std. dev. (Hz)
 	local           float64 // peak power over the local noise floor
+	k               int     // peak bin
 }
 
 // result is the outcome of the spectral stage.
 type result struct {
 	f0Hz, b, clarity float64
 	power            float64 // sum of the partials' squared amplitudes
-	complete         float64 // share of the partial positions in band where a partial was found
+	explained        float64 // share of the band's significant peak power in the partials
 	used             int
 }
 
@@ -38,12 +39,15 @@ func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
 		if err := a.spectrumFor(start); err != nil {
 			return err
 		}
-		searched := a.track(start)
+		a.track(start)
 		if len(a.parts) == 0 || len(a.parts) == 1 && a.parts[0].local < loneRatio {
 			return ErrNoPitch
 		}
 		f0, b := a.fitPartials()
-		next, wrong := a.octaveCheck(f0, b, minHz, maxHz)
+		next, wrong, err := a.octaveCheck(f0, b, minHz, maxHz)
+		if err != nil {
+			return err
+		}
 		if wrong && fix < maxFixes {
 			start = next
 			continue
@@ -54,7 +58,7 @@ func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
 		}
 		res.f0Hz, res.b, res.used = f0, b, a.spec.l<<a.spec.level
 		res.clarity = a.clarity(f0)
-		res.complete = float64(len(a.parts)) / float64(max(1, searched))
+		res.explained = a.explained(f0)
 		res.power = 0
 		for _, p := range a.parts {
 			res.power += math.Pow(10, p.db/10)
@@ -68,8 +72,7 @@ func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
 
 // track searches partials n = 1..MaxPartials near n·f0·sqrt(1+B·n²), refitting f0 and
 // B after every partial found so that the prediction follows the stretch of the series.
-// It returns the number of positions searched (those within the band).
-func (a *Analyzer) track(startHz float64) (searched int) {
+func (a *Analyzer) track(startHz float64) {
 	sp := &a.spec
 	a.parts = a.parts[:0]
 	f0, b := startHz, 0.0
@@ -79,7 +82,6 @@ func (a *Analyzer) track(startHz float64) (searched int) {
 		if pred > float64(sp.kmax)*sp.binHz {
 			break
 		}
-		searched++
 		k := sp.localMax(pred-searchWidth*f0, pred+searchWidth*f0)
 		if k < 0 {
 			continue
@@ -94,10 +96,9 @@ func (a *Analyzer) track(startHz float64) (searched int) {
 		// spaced partials are set by the partials' own skirts, not by the noise.
 		snr := power / math.Max(sp.floor, 1e-300)
 		a.parts = append(a.parts, partialEst{n: n, hz: hz, db: sp.amplitudeDB(power), snr: snr,
-			sd: sp.binSigmaHz(snr), local: sp.power[k] / math.Max(floor, 1e-300)})
+			sd: sp.binSigmaHz(snr), local: sp.power[k] / math.Max(floor, 1e-300), k: k})
 		f0, b = a.predictModel(f0, b)
 	}
-	return searched
 }
 
 // predictModel updates the running f0 and B from the partials found so far. B is kept
@@ -158,24 +159,32 @@ func (a *Analyzer) fitPartials() (f0, b float64) {
 // spectrum holds partials between the found ones at 1/d of the spacing (d = 2 or 3),
 // the true fundamental is f0/d (YIN chose a period d times too short). It returns the
 // start frequency for the corrected search.
-func (a *Analyzer) octaveCheck(f0, b, minHz, maxHz float64) (float64, bool) {
+// A series that continues outside the search range is reported as no pitch rather than
+// measured at the wrong octave.
+func (a *Analyzer) octaveCheck(f0, b, minHz, maxHz float64) (float64, bool, error) {
 	g := 0
 	for _, p := range a.parts {
 		g = gcd(g, p.n)
 	}
-	if g > 1 && modelHz(g, f0, b) <= maxHz*semitone {
-		return modelHz(g, f0, b), true
+	if g > 1 {
+		f1 := modelHz(g, f0, b)
+		if f1 > maxHz*semitone {
+			return 0, false, fmt.Errorf("%w: the partial series starts at %.4g Hz, above the search range", ErrNoPitch, f1)
+		}
+		return f1, true, nil
 	}
 	for d := 2; d <= 3; d++ {
 		fs, bs := f0/float64(d), b/float64(d*d)
-		if modelHz(1, fs, bs) < minHz/semitone {
+		if !a.subPartials(fs, bs, d) {
 			continue
 		}
-		if a.subPartials(fs, bs, d) {
-			return modelHz(1, fs, bs), true
+		if f1 := modelHz(1, fs, bs); f1 >= minHz/semitone {
+			return f1, true, nil
 		}
+		return 0, false, fmt.Errorf("%w: the partial series continues below the search range, at %.4g Hz",
+			ErrNoPitch, modelHz(1, fs, bs))
 	}
-	return 0, false
+	return 0, false, nil
 }
 
 // subPartials reports whether the partials m (m not a multiple of d) of the series
@@ -204,9 +213,7 @@ func (a *Analyzer) subPartials(fs, bs float64, d int) bool {
 // that lies within the found partials' peaks.
 func (a *Analyzer) clarity(f0 float64) float64 {
 	sp := &a.spec
-	last := a.parts[len(a.parts)-1].hz
-	lo := max(0, int(0.5*f0/sp.binHz))
-	hi := min(sp.kmax, int((last+0.5*f0)/sp.binHz))
+	lo, hi := a.band(f0)
 	var total, in float64
 	for k := lo; k <= hi; k++ {
 		total += sp.power[k]
@@ -222,6 +229,37 @@ func (a *Analyzer) clarity(f0 float64) float64 {
 		return 0
 	}
 	return math.Min(1, in/total)
+}
+
+// explained is the share of the power of all significant spectral peaks (local maxima
+// above the detection threshold) up to the last partial that the found partials hold.
+// It is near 1 when the series accounts for every line in the spectrum.
+func (a *Analyzer) explained(f0 float64) float64 {
+	sp := &a.spec
+	lo, hi := a.band(f0)
+	thr := math.Max(detectRatio*sp.floor, relFloor*sp.full)
+	p := sp.power
+	var all, in float64
+	for k := max(lo, 1); k <= min(hi, sp.kmax); k++ {
+		if p[k] > p[k-1] && p[k] >= p[k+1] && p[k] >= thr {
+			all += p[k]
+		}
+	}
+	for _, q := range a.parts {
+		in += p[q.k]
+	}
+	if all <= 0 {
+		return 1
+	}
+	return math.Min(1, in/all)
+}
+
+// band returns the bins from half the fundamental to half a partial spacing above the
+// last partial found.
+func (a *Analyzer) band(f0 float64) (lo, hi int) {
+	sp := &a.spec
+	last := a.parts[len(a.parts)-1].hz
+	return max(0, int(0.5*f0/sp.binHz)), min(sp.kmax, int((last+0.5*f0)/sp.binHz))
 }
 
 func gcd(a, b int) int {

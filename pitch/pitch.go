@@ -196,7 +196,7 @@ func (a *Analyzer) Analyze(dst *Note, x []float32, hint Hint) error {
 	}
 	var res result
 	err = a.refine(&res, yinHz, minHz, maxHz)
-	if !sure || err != nil || res.complete < minComplete {
+	if !sure || err != nil || res.explained < minExplained {
 		start := a.bestCandidate(&res, err, yinHz, minHz, maxHz)
 		err = a.refine(&res, start, minHz, maxHz)
 	}

@@ -24,7 +24,8 @@ type Segment struct{ Onset, Start, End int }
 // be too short to analyse (Analyze then reports ErrTooShort). Segments panics if rateHz
 // is not positive (a caller bug).
 func Segments(dst []Segment, x []float32, rateHz, minHz float64) []Segment {
-	d := NewOnsetDetector(rateHz)
+	var d OnsetDetector
+	d.init(rateHz)
 	first := len(dst)
 	for i := 0; i < len(x); i += d.hop {
 		if d.Push(x[i:min(i+d.hop, len(x))]) >= 0 {

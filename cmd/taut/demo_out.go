@@ -45,8 +45,8 @@ func printPlan(w io.Writer, n *sim.Night, configName string, seed uint64) {
 	o := n.Options
 	fmt.Fprintf(w, "taut demo: %s (%d strings, embedded %s), seed %d\n",
 		n.Config.Instrument.Name, len(n.Config.Instrument.Strings), configName, seed)
-	fmt.Fprintf(w, "night: %.1f h from %s, %d exciter rounds every %v, %d strikes %.2f s apart at %d Hz\n",
-		o.Hours, demoStart.Format("2006-01-02 15:04 MST"), len(n.Rounds), o.Interval, n.Strikes(), o.ToneS, o.RateHz)
+	fmt.Fprintf(w, "night: %.1f h from %s, %d exciter rounds every %v, %d strikes (each rings %.2f s, then %.2f s damped) at %d Hz\n",
+		o.Hours, demoStart.Format("2006-01-02 15:04 MST"), len(n.Rounds), o.Interval, n.Strikes(), o.ToneS, o.DampS, o.RateHz)
 	fmt.Fprintf(w, "pull-up pass at %.1f h: %d string(s) raised\n", n.PullUpH, len(n.PulledUp))
 	fmt.Fprintln(w, "injected faults:")
 	for _, f := range n.Faults {

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"context"
 	"strings"
 	"testing"
@@ -40,9 +39,9 @@ func testLamps(required bool) instrument.Lamps {
 }
 
 // warnings returns the warn-level lines of a JSON log.
-func warnings(buf *bytes.Buffer) []string {
+func warnings(log string) []string {
 	var out []string
-	for _, l := range strings.Split(strings.TrimSpace(buf.String()), "\n") {
+	for _, l := range strings.Split(strings.TrimSpace(log), "\n") {
 		if strings.Contains(l, `"level":"warn"`) {
 			out = append(out, l)
 		}
@@ -74,7 +73,7 @@ func TestSetupLamps(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			pins := registerPins(t, tt.pins...)
-			var buf bytes.Buffer
+			var buf lockedBuffer // the board's goroutine logs while the test reads
 			board, err := setupLamps(testLamps(tt.required), tt.off, zerolog.New(&buf))
 			if tt.wantErr != nil {
 				if err == nil {
@@ -90,7 +89,7 @@ func TestSetupLamps(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			warns := warnings(&buf)
+			warns := warnings(buf.String())
 			switch {
 			case tt.wantWarn == "" && len(warns) != 0:
 				t.Errorf("warnings %q, want none", warns)

@@ -1,6 +1,7 @@
 package journal
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"strconv"
@@ -92,7 +93,7 @@ func checkEntry(e *monitor.Entry) error {
 		}
 	}
 	if e.Kind == "" {
-		return fmt.Errorf("field kind is empty (want reading, state, gap, ...)")
+		return errors.New("field kind is empty (want reading, state, gap, ...)")
 	}
 	if e.State > monitor.Alarm {
 		return fmt.Errorf("field state is %v (want quiet, settling, steady, off-target or alarm)", e.State)

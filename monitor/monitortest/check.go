@@ -124,7 +124,12 @@ func checkStates(t testing.TB, scale float64, entries []monitor.Entry, at func(*
 			t.Errorf("%s: %d state changes %v, want %d %v", id, len(g), statesOf(g), len(want), want)
 			continue
 		}
+		prev := monitor.Quiet
 		for k, w := range want {
+			if g[k].Prev == nil || *g[k].Prev != prev {
+				t.Errorf("%s change %d: prev_state %v, want %v", id, k, g[k].Prev, prev)
+			}
+			prev = g[k].State
 			lo, hi := BenchTimeS(id, w.AtH, scale)-0.5, BenchTimeS(id, w.UpToH, scale)+0.5
 			if ts := at(&g[k]); g[k].State != w.State || g[k].Reason != w.Reason || ts < lo || ts > hi {
 				t.Errorf("%s change %d: %v (%s) at %.1f s, want %v (%s) between %.1f and %.1f s",

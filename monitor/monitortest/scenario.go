@@ -31,6 +31,7 @@ type Scenario struct {
 func (s *Scenario) Tone(i int) synth.Tone {
 	so := s.Soundings[i]
 	return synth.Tone{F0Hz: so.F0Hz, B: so.B, Partials: 12, Level: 0.25, DecayS: 1.2, DecayGrowS: 0.1,
+		ThumpS: 0.01, ThumpLevel: 0.15,
 		Seed: uint64(i + 1)}
 }
 

@@ -46,6 +46,7 @@ type view struct {
 type row struct {
 	Rank                                  int
 	ID, Note, Section, State, StateClass  string
+	OtherNote                             string // the note when it differs from the id
 	Class                                 string // attention label
 	Flags, Warnings                       string
 	Reasons                               []string
@@ -110,6 +111,15 @@ func rowOf(s *String) row {
 		Cents: "—", Rate: "—", Steady: "—", Ahead: "—", Tension: "—", Margin: "—", Model: "—", PullUp: "—",
 		Basis: s.Basis,
 	}
+	if s.Note != s.ID {
+		r.OtherNote = s.Note
+	}
+	if s.Class == ClassPitch && finite(s.Analysis.CentsNow) {
+		r.Class = "SHARP"
+		if s.Analysis.CentsNow < 0 {
+			r.Class = "FLAT"
+		}
+	}
 	if s.TensionN > 0 {
 		r.Tension = fmt.Sprintf("%.0f N", s.TensionN)
 	}
@@ -161,6 +171,8 @@ func pullUpText(an *settle.Analysis) string {
 		return "none"
 	case s.RaiseCents < 0:
 		return fmt.Sprintf("lower %.1f ¢", -s.RaiseCents)
+	case s.Share == 0:
+		return fmt.Sprintf("check the pin first, then raise %.1f ¢ to pitch", s.RaiseCents)
 	}
 	return fmt.Sprintf("raise %.1f ¢ → %+.1f (falls back %.0f %%)", s.RaiseCents, s.AimCents, 100*s.Share)
 }

@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"taut/monitor"
@@ -218,6 +219,9 @@ func (s *String) judgeSlip() {
 		s.flag(FlagSlip, fmt.Sprintf("the listener raised a jump alarm at %s (%.1f cents from target)",
 			j.entry.Time.Format("15:04"), j.entry.Cents))
 	}
+	if slices.Contains(s.Flags, FlagSlip) {
+		s.slipSuggestion()
+	}
 	outliers := 0
 	for _, e := range s.Analysis.Events {
 		if e.Kind == settle.EventOutlier {
@@ -227,6 +231,18 @@ func (s *String) judgeSlip() {
 	if outliers > 0 {
 		s.warn(WarnOutlier, fmt.Sprintf("%d reading(s) off the trend left out of the fit", outliers))
 	}
+}
+
+// slipSuggestion replaces the pull-up for a slipped string: a slip is not stretch,
+// so no fall-back share applies; find the cause first, then bring it back to pitch.
+func (s *String) slipSuggestion() {
+	g := &s.Analysis.Suggest
+	if !s.Analysed || !finite(s.Analysis.CentsNow) {
+		return
+	}
+	g.RaiseCents, g.AimCents, g.Share = -s.Analysis.CentsNow, 0, 0
+	g.Basis = "after a slip: check and re-seat the pin, loop or bearing point first, then retune to pitch " +
+		"(no fall-back share: a slip is not stretch)"
 }
 
 func (s *String) judgePartials() {

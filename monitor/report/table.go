@@ -36,7 +36,7 @@ func (r *Report) WriteTable(w io.Writer) error {
 		fmt.Fprintf(w, "\nlook at first: ")
 		var ids []string
 		for _, s := range att[:min(len(att), 10)] {
-			ids = append(ids, fmt.Sprintf("%s (%s)", s.ID, strings.ToLower(classNames[s.Class])))
+			ids = append(ids, fmt.Sprintf("%s (%s)", s.ID, strings.ToLower(rowOf(s).Class)))
 		}
 		fmt.Fprint(w, strings.Join(ids, ", "))
 		if len(att) > 10 {
@@ -76,6 +76,8 @@ func shortPullUp(s *String) string {
 		return "none"
 	case g.RaiseCents < 0:
 		return fmt.Sprintf("lower %.1f", -g.RaiseCents)
+	case g.Share == 0:
+		return fmt.Sprintf("check pin, raise %.1f", g.RaiseCents)
 	}
 	return fmt.Sprintf("raise %.1f (to %+.1f)", g.RaiseCents, g.AimCents)
 }

@@ -28,8 +28,12 @@
 //   - A jump whose next reading returns to the run's trend (within half the threshold)
 //     is an outlier: one bad reading, left out of the fits.
 //
-// σ_e is 1.4826·MAD of all one-step prediction errors (the MAD scaled to a Gaussian
-// SD), so the few large errors at real events barely move it.
+// σ_e is 1.4826·MAD (the MAD scaled to a Gaussian SD) of the one-step prediction
+// errors of a first walk with the floor thresholds, counting only readings that
+// follow at least three readings of trend and are not events: the curvature right
+// after a start or a pull-up and the events themselves would otherwise inflate it.
+// With fewer than five such errors σ_e is 0 and the floors apply; when JumpSigma·σ_e
+// exceeds a floor the series is walked again with the raised thresholds.
 //
 // # Models
 //

@@ -55,13 +55,23 @@ type detector struct {
 }
 
 // detect finds pull-ups, steps, outliers and gaps; see the package documentation.
-// It returns the events in time order and the robust SD of the innovations.
+// It returns the events in time order and the robust SD of the innovations. A first
+// walk uses the floor thresholds; the innovations of the points it left in runs of at
+// least three readings give the noise scale, and when that raises a threshold the
+// series is walked again.
 func detect(pts []Point, o Options) ([]Event, float64) {
-	d := detector{pts: pts, gapH: gapHours(pts, o)}
-	sd := d.innovationSD()
-	d.up = math.Max(o.PullUpCents, o.JumpSigma*sd)
-	d.down = math.Max(o.StepCents, o.JumpSigma*sd)
-	return d.walk(), sd
+	d := detector{pts: pts, gapH: gapHours(pts, o), up: o.PullUpCents, down: o.StepCents}
+	ev, inn := d.walk()
+	sd := 0.0
+	if len(inn) >= 5 {
+		sd = 1.4826 * mad(inn)
+	}
+	if o.JumpSigma*sd > math.Min(d.up, d.down) {
+		d.up = math.Max(o.PullUpCents, o.JumpSigma*sd)
+		d.down = math.Max(o.StepCents, o.JumpSigma*sd)
+		ev, _ = d.walk()
+	}
+	return ev, sd
 }
 
 func gapHours(pts []Point, o Options) float64 {
@@ -78,32 +88,6 @@ func gapHours(pts []Point, o Options) float64 {
 		return 1
 	}
 	return math.Max(1, 3*median(dt))
-}
-
-// innovationSD is 1.4826·MAD of the one-step prediction errors with no resets: the
-// few large errors at pull-ups and steps barely move the median.
-func (d *detector) innovationSD() float64 {
-	var e []float64
-	start := 0
-	for i := 1; i < len(d.pts); i++ {
-		if d.pts[i].Hours-d.pts[i-1].Hours > d.gapH {
-			start = i
-			continue
-		}
-		e = append(e, d.pts[i].Cents-d.predict(runOf(start, i), d.pts[i].Hours))
-	}
-	if len(e) < 3 {
-		return 0
-	}
-	return 1.4826 * mad(e)
-}
-
-func runOf(start, end int) []int {
-	r := make([]int, 0, end-start)
-	for i := start; i < end; i++ {
-		r = append(r, i)
-	}
-	return r
 }
 
 // predict extrapolates the least-squares line through the last (up to) four points of
@@ -140,8 +124,7 @@ func (d *detector) predict(run []int, h float64) float64 {
 // extrapolated trend of the run; it needs at least two points of trend, so a drop
 // right after the start, a pull-up, a step or a gap is left to the creep model
 // (new strings fall fastest exactly there). Across a gap only a rise is classified.
-func (d *detector) walk() []Event {
-	var ev []Event
+func (d *detector) walk() (ev []Event, innovations []float64) {
 	run := []int{0}
 	for i := 1; i < len(d.pts); i++ {
 		p := d.pts[i]
@@ -157,6 +140,9 @@ func (d *detector) walk() []Event {
 		}
 		kind, size := d.classify(run, p)
 		if kind == "" {
+			if len(run) >= 3 {
+				innovations = append(innovations, p.Cents-d.predict(run, p.Hours))
+			}
 			run = append(run, i)
 			continue
 		}
@@ -167,7 +153,7 @@ func (d *detector) walk() []Event {
 		ev = append(ev, Event{Kind: kind, Index: i, Hours: p.Hours, Cents: size})
 		run = []int{i}
 	}
-	return ev
+	return ev, innovations
 }
 
 // classify says whether p leaves the run as a pull-up or a step, and by how much.

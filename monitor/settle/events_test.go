@@ -130,3 +130,25 @@ func TestAnalyze_TradeShareWithoutHistory(t *testing.T) {
 		t.Errorf("now %.1f, raise %.2f, want %.2f", an.CentsNow, an.Suggest.RaiseCents, want)
 	}
 }
+
+func TestAnalyze_ShortNightFastCreep(t *testing.T) {
+	// Eleven half-hourly readings of a fresh nylon string from a 5-hour demo night:
+	// fast early creep, a pull-up of ~24 cents at 2.5 h, a slip of ~35 cents at 4 h.
+	// The curvature of the early creep must not inflate the noise scale so far that
+	// the events hide under it.
+	cents := []float64{-1.133, -7.764, -11.587, -13.933, -16.086, 7.791, 4.634, 2.394, -34.513, -35.819, -36.995}
+	var pts []Point
+	for i, c := range cents {
+		pts = append(pts, Point{0.00764 + 0.5*float64(i), c})
+	}
+	an, err := Analyze(pts, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := kinds(an.Events); !slices.Equal(got, []EventKind{EventPullUp, EventStep}) {
+		t.Fatalf("events %+v, want a pull-up then a step", an.Events)
+	}
+	if !near(an.Events[1].Cents, -35, 4) {
+		t.Errorf("step %.1f cents, want about -35", an.Events[1].Cents)
+	}
+}

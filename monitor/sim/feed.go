@@ -10,6 +10,7 @@ import (
 // Player is where the night's audio goes (capture.SynthSource).
 type Player interface {
 	Queue(tone synth.Tone, durS float64)
+	QueueSilence(durS float64)
 	Skip(frames int64)
 	Close() error
 }
@@ -22,8 +23,7 @@ type Exciter interface {
 }
 
 // Feed plays the night: for each strike it registers the strike with ex, then queues
-// its tone, which rings until the next strike; between rounds it skips the idle time
-// (a tone cut off into silence would itself look like an onset). It stays at most
+// its tone and the damped pause after it; between rounds it skips the idle time. It stays at most
 // ahead strikes in front of capture, so the listener's memory of pending strikes (and
 // the queue) stays small. It closes p at the end or when ctx ends.
 func Feed(ctx context.Context, n *Night, p Player, ex Exciter, ahead int) error {
@@ -44,6 +44,7 @@ func Feed(ctx context.Context, n *Night, p Player, ex Exciter, ahead int) error 
 			}
 			ex.Excite(s.String, s.Frame)
 			p.Queue(s.Tone, n.Options.ToneS)
+			p.QueueSilence(n.Options.DampS)
 			sent = append(sent, s.Frame)
 			pos = s.Frame + n.SlotFrames()
 		}

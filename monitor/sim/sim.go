@@ -16,11 +16,9 @@ type Options struct {
 	Seed     uint64        // every random choice; 0 → 1
 	Hours    float64       // length of the night; 0 → 9
 	Interval time.Duration // between the starts of two exciter rounds; 0 → 30 min
-	// ToneS is the time from one strike to the next within a round; the string rings
-	// until the next strike (the exciter does not damp it). 0 → 1.25 s: shorter slots
-	// cut the bass strings' analysis windows short.
-	ToneS  float64
-	RateHz int // sample rate; 0 → 48000
+	ToneS    float64       // how long each strike rings before it is damped; 0 → 1.0 s
+	DampS    float64       // damped (silent) pause after each strike; 0 → 0.25 s
+	RateHz   int           // sample rate; 0 → 48000
 }
 
 func (o Options) withDefaults() Options {
@@ -34,7 +32,10 @@ func (o Options) withDefaults() Options {
 		o.Interval = 30 * time.Minute
 	}
 	if o.ToneS <= 0 {
-		o.ToneS = 1.25
+		o.ToneS = 1.0
+	}
+	if o.DampS <= 0 {
+		o.DampS = 0.25
 	}
 	if o.RateHz <= 0 {
 		o.RateHz = 48000
@@ -90,9 +91,14 @@ type Strike struct {
 	Tone   synth.Tone
 }
 
-// SlotFrames is the frames one strike occupies (ToneS).
-func (n *Night) SlotFrames() int64 {
+// ToneFrames is the frames each strike rings.
+func (n *Night) ToneFrames() int64 {
 	return int64(math.Round(n.Options.ToneS * float64(n.Options.RateHz)))
+}
+
+// SlotFrames is the frames one strike occupies: it rings, then is damped.
+func (n *Night) SlotFrames() int64 {
+	return n.ToneFrames() + int64(math.Round(n.Options.DampS*float64(n.Options.RateHz)))
 }
 
 // Strikes counts every strike of the night.

@@ -101,7 +101,7 @@ func TestNewNight_NylonCreepsMoreThanWound(t *testing.T) {
 }
 
 func TestNewNight_Schedule(t *testing.T) {
-	n, err := NewNight(harp(t), Options{Hours: 9, Interval: 30 * time.Minute, ToneS: 1.25, RateHz: 48000})
+	n, err := NewNight(harp(t), Options{Hours: 9, Interval: 30 * time.Minute, ToneS: 1, DampS: 0.25, RateHz: 48000})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -149,6 +149,7 @@ func (p *fakePlayer) Queue(tone synth.Tone, durS float64) {
 	p.items = append(p.items, "tone")
 	p.frames += int64(durS * 48000)
 }
+func (p *fakePlayer) QueueSilence(durS float64) { p.frames += int64(math.Round(durS * 48000)) }
 func (p *fakePlayer) Skip(frames int64) {
 	p.items = append(p.items, "skip")
 	p.frames += frames
