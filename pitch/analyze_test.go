@@ -84,8 +84,8 @@ func TestAnalyze_NoPitchConditions(t *testing.T) {
 		{"Zeros", make([]float32, int(rate)), Hint{}, ErrSilence},
 		{"Quiet", sine(int(rate), 440, 1e-4), Hint{}, ErrSilence},
 		{"Clipped", clipped, Hint{}, ErrClipped},
-		{"NaN", withNaN, Hint{}, ErrNotFinite},
-		{"Inf", withInf, Hint{}, ErrNotFinite},
+		{"NaN", withNaN, Hint{}, ErrBadSample},
+		{"Inf", withInf, Hint{}, ErrBadSample},
 		{"WhiteNoise", white, Hint{}, ErrNoPitch},
 		{"BrownNoise", brown, Hint{}, ErrNoPitch},
 		{"HintAbove", sine(int(rate), 440, 0.5), Hint{MinHz: 600, MaxHz: 700}, ErrNoPitch},
@@ -246,8 +246,8 @@ func TestAnalyze_CramerRao(t *testing.T) {
 	a := newAnalyzer(t, Config{SampleRate: rate})
 	rng := rand.New(rand.NewPCG(9, 9))
 	x := make([]float32, 4800) // 0.1 s
-	const trials = 300
-	for _, f := range []float64{440, 1000, 3000} {
+	const trials = 150
+	for _, f := range []float64{440, 3000} {
 		for _, snrDB := range []float64{20, 40} {
 			var se, crb float64
 			for range trials {

@@ -81,8 +81,8 @@ func (d *OnsetDetector) accumulate(x []float32) {
 	prev := d.prev
 	for i, v := range x {
 		f := float64(v)
-		if f-f != 0 { // NaN or Inf: treat as silence rather than poison the sums
-			f = 0
+		if f-f != 0 { // NaN or Inf: hold the previous sample rather than poison the sums
+			f = prev
 		}
 		diff := f - prev
 		d.hf += diff * diff

@@ -6,13 +6,14 @@ import (
 )
 
 const (
-	detectRatio = 50   // a partial's peak must exceed the mean local noise power this much (17 dB) …
-	loneRatio   = 1000 // … and a lone partial (a plain sine) this much (30 dB)
-	relFloor    = 1e-6 // … and be within 60 dB of the strongest partial found
-	searchWidth = 0.25 // search ±this share of f0 around each predicted partial
-	outlierZ    = 6.0  // drop a partial whose fit residual exceeds this many standard deviations
-	maxFixes    = 2    // octave corrections per note
-	semitone    = 1.0594630943592953
+	detectRatio   = 50   // a partial's peak must exceed the mean local noise power this much (17 dB) …
+	loneRatio     = 1000 // … and a lone partial (a plain sine) this much (30 dB)
+	relFloor      = 1e-6 // … and be within 60 dB of the strongest partial found
+	searchWidth   = 0.25 // search ±this share of f0 around each predicted partial
+	outlierZ      = 6.0  // drop a partial whose fit residual exceeds this many standard deviations
+	maxFixes      = 3    // octave corrections per note
+	maxMissingLow = 3    // a series must show one of its first three partials
+	semitone      = 1.0594630943592953
 )
 
 // partialEst is one detected partial with what the fit needs.
@@ -40,15 +41,20 @@ func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
 			return err
 		}
 		a.track(start)
-		if len(a.parts) == 0 || len(a.parts) == 1 && a.parts[0].local < loneRatio {
+		if len(a.parts) == 0 {
 			return ErrNoPitch
 		}
 		f0, b := a.fitPartials()
-		next, wrong, err := a.octaveCheck(f0, b, minHz, maxHz)
-		if err != nil {
-			return err
+		if len(a.parts) == 1 && a.parts[0].local < loneRatio {
+			return ErrNoPitch
 		}
-		if wrong && fix < maxFixes {
+		next, wrong, err := a.octaveCheck(f0, b, minHz, maxHz)
+		switch {
+		case err != nil:
+			return err
+		case wrong && fix == maxFixes:
+			return fmt.Errorf("%w: the partial series does not settle on one fundamental", ErrNoPitch)
+		case wrong:
 			start = next
 			continue
 		}
@@ -155,16 +161,23 @@ func (a *Analyzer) fitPartials() (f0, b float64) {
 
 // octaveCheck looks for a wrong period. If every partial number shares a factor g > 1,
 // the true series starts at partial g (YIN chose a period g times too long); a lone
-// partial is taken as partial 1. If the
+// partial is taken as partial 1, and so is the lowest partial when partials 1 to 3 are
+// all missing. If the
 // spectrum holds partials between the found ones at 1/d of the spacing (d = 2 or 3),
 // the true fundamental is f0/d (YIN chose a period d times too short). It returns the
 // start frequency for the corrected search.
 // A series that continues outside the search range is reported as no pitch rather than
 // measured at the wrong octave.
 func (a *Analyzer) octaveCheck(f0, b, minHz, maxHz float64) (float64, bool, error) {
-	g := 0
+	g, nmin := 0, a.parts[0].n
 	for _, p := range a.parts {
 		g = gcd(g, p.n)
+	}
+	if nmin > maxMissingLow {
+		// Partials 1 to 3 all missing is not a string's series but a common
+		// subharmonic of something else (often of two notes sounding together): start
+		// again from the lowest line as partial 1.
+		g = nmin
 	}
 	if g > 1 {
 		f1 := modelHz(g, f0, b)
@@ -188,11 +201,12 @@ func (a *Analyzer) octaveCheck(f0, b, minHz, maxHz float64) (float64, bool, erro
 }
 
 // subPartials reports whether the partials m (m not a multiple of d) of the series
-// (fs, bs) stand out: at least two of them and at least a third of those in band.
+// (fs, bs) stand out: at least two of them and at least a third of those tested, up to
+// the highest partial found.
 func (a *Analyzer) subPartials(fs, bs float64, d int) bool {
 	sp := &a.spec
 	tested, hits := 0, 0
-	for m := 1; m <= d*a.cfg.MaxPartials; m++ {
+	for m := 1; m <= d*a.parts[len(a.parts)-1].n+1; m++ {
 		if m%d == 0 {
 			continue
 		}

@@ -19,8 +19,8 @@ var (
 	ErrClipped = errors.New("pitch: clipped")
 	// ErrNoPitch: no partial series stands out of the noise.
 	ErrNoPitch = errors.New("pitch: no pitch")
-	// ErrNotFinite: a sample is NaN or infinite.
-	ErrNotFinite = errors.New("pitch: sample is NaN or infinite")
+	// ErrBadSample: a sample is NaN, infinite or beyond ±1000 (not audio).
+	ErrBadSample = errors.New("pitch: bad sample")
 )
 
 // Config fixes the sample rate, the search range and the buffer sizes of an Analyzer.
@@ -64,6 +64,7 @@ const (
 
 	clipLevel = 0.999 // |sample| at or above this counts as full scale
 	clipShare = 0.01  // ErrClipped when this share of samples is at full scale
+	maxSample = 1000  // larger magnitudes are not audio (ErrBadSample)
 
 	specPeriods     = 12   // periods of the pitch in the spectral window, at least
 	specLongPeriods = 48   // periods wanted for precision …
@@ -174,7 +175,7 @@ func (a *Analyzer) Config() Config { return a.cfg }
 // the attack) and stores the result in dst, reusing dst.Partials. It uses at most
 // Config.MaxSamples samples and, of those, only as many as the detected pitch needs (see
 // the package doc). On error dst is left unchanged; the error is one of ErrTooShort,
-// ErrSilence, ErrClipped, ErrNoPitch or ErrNotFinite, possibly wrapped.
+// ErrSilence, ErrClipped, ErrNoPitch or ErrBadSample, possibly wrapped.
 func (a *Analyzer) Analyze(dst *Note, x []float32, hint Hint) error {
 	minHz, maxHz, err := a.searchRange(hint)
 	if err != nil {
@@ -190,12 +191,16 @@ func (a *Analyzer) Analyze(dst *Note, x []float32, hint Hint) error {
 	if levelDB(a.levelSum, n) < a.cfg.SilenceDB {
 		return ErrSilence
 	}
+	a.spec.power = nil // no spectrum of this input yet
 	yinHz, sure, err := a.yin(minHz, maxHz)
 	if err != nil {
 		return err
 	}
 	var res result
 	err = a.refine(&res, yinHz, minHz, maxHz)
+	if sure && errors.Is(err, ErrTooShort) {
+		return err // a clear period, but too few of them: no guessing at other pitches
+	}
 	if !sure || err != nil || res.explained < minExplained {
 		start := a.bestCandidate(&res, err, yinHz, minHz, maxHz)
 		err = a.refine(&res, start, minHz, maxHz)

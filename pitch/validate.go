@@ -1,6 +1,9 @@
 package pitch
 
-import "fmt"
+import (
+	"fmt"
+	"math"
+)
 
 // load converts x to float64 into level 0 of the pyramid, keeps prefix sums of squares
 // for level measurements, and rejects non-finite or clipped input.
@@ -12,8 +15,8 @@ func (a *Analyzer) load(x []float32) error {
 	clipped := 0
 	for i, v := range x {
 		f := float64(v)
-		if f-f != 0 { // NaN or ±Inf
-			return fmt.Errorf("%w: sample %d is %v", ErrNotFinite, i, v)
+		if f-f != 0 || math.Abs(f) > maxSample { // NaN, ±Inf or absurd
+			return fmt.Errorf("%w: sample %d is %v, want a finite value in [-1, 1]", ErrBadSample, i, v)
 		}
 		if f >= clipLevel || f <= -clipLevel {
 			clipped++

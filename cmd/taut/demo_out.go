@@ -69,14 +69,3 @@ func printRun(w io.Writer, n *sim.Night, r *nightResult) {
 		fmt.Fprintf(w, "journal: %d write and %d fsync error(s)\n", r.journal.WriteErrors, r.journal.FsyncErrors)
 	}
 }
-
-// faultFlags maps each injected fault to the report flag that must show it.
-func faultFlags(n *sim.Night) map[string][]string {
-	flag := map[sim.FaultKind]string{sim.FaultMargin: report.FlagMargin, sim.FaultWinding: report.FlagPartials,
-		sim.FaultSlip: report.FlagSlip}
-	out := map[string][]string{}
-	for _, f := range n.Faults {
-		out[f.String] = append(out[f.String], flag[f.Kind])
-	}
-	return out
-}

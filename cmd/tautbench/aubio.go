@@ -110,12 +110,21 @@ func parseAubioLine(text string) (aubioFrame, error) {
 
 var errNoAubioFrames = errors.New("no voiced frames in the steady window")
 
-// steadyMedian is aubio's answer for a tone: the median pitch over the frames whose
-// whole analysis buffer lies in [onsetS+fromS, onsetS+toS], leaving out frames that
-// aubio reports as 0 Hz (its "no pitch" value, e.g. below the silence gate).
-// aubiopitch stamps a frame at the start of the hop it has just read, so frame t
-// covers the buf samples ending at t + hop.
+// steadyMedian is aubio's answer for a tone: the median of steadyPitches.
 func steadyMedian(frames []aubioFrame, rateHz float64, buf int, onsetS, fromS, toS float64) (float64, error) {
+	hz := steadyPitches(frames, rateHz, buf, onsetS, fromS, toS)
+	if len(hz) == 0 {
+		return 0, errNoAubioFrames
+	}
+	slices.Sort(hz)
+	return median(hz), nil
+}
+
+// steadyPitches returns the pitches of the frames whose whole analysis buffer lies in
+// [onsetS+fromS, onsetS+toS], leaving out frames that aubio reports as 0 Hz (its
+// "no pitch" value, e.g. below the silence gate). aubiopitch stamps a frame at the
+// start of the hop it has just read, so frame t covers the buf samples ending at t + hop.
+func steadyPitches(frames []aubioFrame, rateHz float64, buf int, onsetS, fromS, toS float64) []float64 {
 	hopS, bufS := float64(aubioHop)/rateHz, float64(buf)/rateHz
 	const slackS = 1e-6 // printed times are rounded to microseconds
 	var hz []float64
@@ -126,9 +135,5 @@ func steadyMedian(frames []aubioFrame, rateHz float64, buf int, onsetS, fromS, t
 		}
 		hz = append(hz, f.Hz)
 	}
-	if len(hz) == 0 {
-		return 0, errNoAubioFrames
-	}
-	slices.Sort(hz)
-	return median(hz), nil
+	return hz
 }

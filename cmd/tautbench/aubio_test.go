@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"math"
 	"strings"
 	"testing"
@@ -43,30 +44,30 @@ func TestParseAubio_Errors(t *testing.T) {
 	}
 }
 
-func TestSteadyMedian(t *testing.T) {
+func TestSteadyPitches(t *testing.T) {
 	const rate, buf = 48000, 4096
-	hop := float64(aubioHop) / rate
 	var frames []aubioFrame
 	for i := range 300 {
-		ts := math.Round(float64(i)*hop*1e6) / 1e6 // aubio prints microseconds
-		hz := 100.0
-		if end := ts + hop; end < 0.1+0.3+float64(buf)/rate || end > 0.1+1.5 {
-			hz = 9999 // outside the window: must be ignored
-		}
-		if i == 100 {
-			hz = 0 // aubio's no-pitch value: left out
-		}
-		if i == 101 || i == 102 {
-			hz = 50 // outliers inside the window: the median shrugs them off
-		}
-		frames = append(frames, aubioFrame{TimeS: ts, Hz: hz})
+		ts := math.Round(float64(i*aubioHop)/rate*1e6) / 1e6 // aubio prints microseconds
+		frames = append(frames, aubioFrame{TimeS: ts, Hz: float64(i)})
 	}
-	got, err := steadyMedian(frames, rate, buf, 0.1, 0.3, 1.5)
-	if err != nil || got != 100 {
-		t.Errorf("got %g, %v; want 100", got, err)
+	frames[100].Hz = 0 // aubio's no-pitch value: left out
+	// Onset 0.1 s, window 0.3..1.5 s after it: samples 19200..76800. Frame i covers
+	// [(i+1)·512 - 4096, (i+1)·512), so frames 45..149 fit, less frame 100.
+	got := steadyPitches(frames, rate, buf, 0.1, 0.3, 1.5)
+	if len(got) != 104 || got[0] != 45 || got[len(got)-1] != 149 {
+		t.Errorf("got %d frames %v..%v, want 104 frames 45..149", len(got), got[0], got[len(got)-1])
 	}
-	if _, err := steadyMedian(frames[:20], rate, buf, 0.1, 0.3, 1.5); err == nil {
-		t.Error("frames before the window gave a pitch, want errNoAubioFrames")
+}
+
+func TestSteadyMedian(t *testing.T) {
+	frames := []aubioFrame{{0.5, 100}, {0.51, 50}, {0.52, 101}, {0.53, 0}, {0.54, 102}}
+	got, err := steadyMedian(frames, 48000, 4096, 0, 0.3, 1.5)
+	if err != nil || got != 100.5 { // 0 Hz left out; median of 50, 100, 101, 102
+		t.Errorf("got %g, %v; want 100.5", got, err)
+	}
+	if _, err := steadyMedian(frames[:1], 48000, 4096, 1, 0.3, 1.5); err == nil {
+		t.Error("a frame before the window gave a pitch, want errNoAubioFrames")
 	}
 }
 
@@ -75,5 +76,29 @@ func TestRun_MissingAubio(t *testing.T) {
 	err := run(t.Context(), []string{"compare", "-aubio", "/nonexistent/aubiopitch"}, &out, &errs)
 	if err == nil || !strings.Contains(err.Error(), "apt-get install aubio-tools") {
 		t.Errorf("got %v, want an error saying how to install aubio-tools", err)
+	}
+}
+
+func TestRun_BadArguments(t *testing.T) {
+	tests := []struct {
+		name string
+		args []string
+	}{
+		{"no command", nil},
+		{"unknown command", []string{"race"}},
+		{"unknown flag", []string{"compare", "-bogus"}},
+		{"negative lead", []string{"compare", "-lead", "-1"}},
+		{"rate too low", []string{"compare", "-rate", "8000"}},
+		{"stray argument", []string{"compare", "extra"}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			var out, errs strings.Builder
+			err := run(t.Context(), tt.args, &out, &errs)
+			var u usageError
+			if !errors.As(err, &u) {
+				t.Errorf("got %v, want a usage error (exit status 2)", err)
+			}
+		})
 	}
 }

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -59,7 +60,7 @@ type runResult struct {
 	speeds      map[string]*speed
 	aubioStart  map[startKey]time.Duration // CPU of one aubiopitch process on a one-hop file
 	ourFailures []string                   // tone: error, for the closing notes
-	multiNotes  int                        // tones where segmentation found more than one note
+	multiNotes  int                        // tones where more than one of our windows had a pitch
 }
 
 func parseCompareFlags(args []string, stderr io.Writer) (compareOptions, error) {
@@ -74,16 +75,19 @@ func parseCompareFlags(args []string, stderr io.Writer) (compareOptions, error) 
 	fs.StringVar(&o.dir, "dir", "", "keep the corpus WAV files in this directory (default: a temporary directory, removed)")
 	fs.BoolVar(&o.verbose, "v", false, "print every tone's result to stderr")
 	if err := fs.Parse(args); err != nil {
-		return o, err
+		if errors.Is(err, flag.ErrHelp) {
+			return o, err
+		}
+		return o, usageError{err}
 	}
 	if fs.NArg() > 0 {
-		return o, fmt.Errorf("compare: unexpected argument %q", fs.Arg(0))
+		return o, usagef("compare: unexpected argument %q", fs.Arg(0))
 	}
 	if !(o.leadS >= 0 && o.leadS <= 10) {
-		return o, fmt.Errorf("compare: -lead %g outside 0..10 s", o.leadS)
+		return o, usagef("compare: -lead %g outside 0..10 s", o.leadS)
 	}
 	if o.rateHz < 22050 || o.rateHz > 192000 {
-		return o, fmt.Errorf("compare: -rate %d outside 22050..192000", o.rateHz)
+		return o, usagef("compare: -rate %d outside 22050..192000", o.rateHz)
 	}
 	o.keyStep = 3
 	if o.quick {
@@ -172,7 +176,7 @@ func writeCorpus(cases []testCase, dir string, rateHz int) ([]string, error) {
 	paths := make([]string, len(cases))
 	for i, c := range cases {
 		paths[i] = filepath.Join(dir, c.Name+".wav")
-		if err := capture.WriteWAVFile(paths[i], monoAt(rateHz), capture.EncF32, c.render(float64(rateHz))); err != nil {
+		if err := writeWAV(paths[i], c.render(float64(rateHz)), rateHz); err != nil {
 			return nil, err
 		}
 	}
@@ -227,7 +231,7 @@ func aubioStartCost(ctx context.Context, bin, dir string, rateHz int) (map[start
 	for i := range x {
 		x[i] = float32(0.1 * float64(i%97) / 97)
 	}
-	if err := capture.WriteWAVFile(path, monoAt(rateHz), capture.EncF32, x); err != nil {
+	if err := writeWAV(path, x, rateHz); err != nil {
 		return nil, err
 	}
 	costs := map[startKey]time.Duration{}
@@ -251,9 +255,29 @@ func aubioStartCost(ctx context.Context, bin, dir string, rateHz int) (map[start
 func logOutcome(w io.Writer, o outcome) {
 	fmt.Fprintf(w, "%-28s truth %9.3f Hz B %.2e", o.c.Name, o.c.TruthHz, o.c.Tone.B)
 	for _, name := range analyserNames() {
-		fmt.Fprintf(w, "  %s %+.3fc", name, errorCents(o.hz[name], o.c.TruthHz))
+		if c := errorCents(o.hz[name], o.c.TruthHz); c == c {
+			fmt.Fprintf(w, "  %s %+.3fc", name, c)
+		} else {
+			fmt.Fprintf(w, "  %s miss", name)
+		}
 	}
 	fmt.Fprintln(w)
 }
 
-func monoAt(rateHz int) capture.Format { return capture.Format{SampleRate: rateHz, Channels: 1} }
+// writeWAV writes mono 32-bit float samples with capture's encoder. Unlike
+// capture.WriteWAVFile it does not sync: the corpus is scratch data, and 180 fsyncs on a
+// busy disk would dominate the run.
+func writeWAV(path string, x []float32, rateHz int) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return fmt.Errorf("write corpus: %w", err)
+	}
+	err = capture.EncodeWAV(f, capture.Format{SampleRate: rateHz, Channels: 1}, capture.EncF32, x)
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		return fmt.Errorf("write corpus %s: %w", path, err)
+	}
+	return nil
+}

@@ -27,19 +27,28 @@ func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	err := run(ctx, os.Args[1:], os.Stdout, os.Stderr)
+	var usage usageError
 	switch {
 	case errors.Is(err, flag.ErrHelp):
 		os.Exit(0)
+	case errors.As(err, &usage):
+		fmt.Fprintln(os.Stderr, "tautbench:", err)
+		os.Exit(2)
 	case err != nil:
 		fmt.Fprintln(os.Stderr, "tautbench:", err)
 		os.Exit(1)
 	}
 }
 
+// usageError marks bad arguments: exit status 2 instead of 1.
+type usageError struct{ error }
+
+func usagef(format string, args ...any) error { return usageError{fmt.Errorf(format, args...)} }
+
 func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	if len(args) == 0 {
 		fmt.Fprint(stderr, usage)
-		return errors.New("no command given")
+		return usagef("no command given")
 	}
 	switch args[0] {
 	case "compare":
@@ -49,5 +58,5 @@ func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 		return nil
 	}
 	fmt.Fprint(stderr, usage)
-	return fmt.Errorf("unknown command %q", args[0])
+	return usagef("unknown command %q", args[0])
 }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"runtime"
 	"strings"
 )
 
@@ -11,7 +12,8 @@ import (
 // the speed table, how each analyser was run, and the targets.
 func writeReport(w io.Writer, res *runResult) {
 	rows := groupRows(res.outcomes)
-	fmt.Fprintf(w, "Command (from the module root): `%s`\n\n", res.cmdline)
+	fmt.Fprintf(w, "Command (from the module root): `%s` (%s, %s/%s, %d CPUs)\n\n", res.cmdline,
+		runtime.Version(), runtime.GOOS, runtime.GOARCH, runtime.NumCPU())
 	writeCorpusNote(w, res)
 	fmt.Fprintln(w)
 	writeAccuracyTable(w, rows)

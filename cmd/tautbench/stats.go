@@ -12,11 +12,6 @@ import (
 // a sub- or super-octave). A miss is a tone for which the analyser gave no pitch.
 const grossCents = 50
 
-// result is one analyser's answer for one tone.
-type result struct {
-	Hz float64 // 0 when the analyser gave no pitch
-}
-
 // summary aggregates the answers for one group of tones.
 type summary struct {
 	N        int

@@ -90,6 +90,11 @@ func checkUpright(t *testing.T, cfg *Config) {
 			}
 			continue
 		}
+		// reference-values §2.2 (Young 1952, seen; B derived): middle C plain wire has
+		// B ≈ 3.5e-4, "about the same in all the pianos tested"; allow ±50 %.
+		if b := s.Phys.Inharmonicity(tn); s.Note == "C4" && (b < 1.75e-4 || b > 5.25e-4) {
+			t.Errorf("%s: predicted B %.2e, want ≈3.5e-4 ±50 %%", s.ID, b)
+		}
 		if tn < 580 || tn > 980 {
 			t.Errorf("%s: plain-wire tension %.0f N outside 580–980 N", s.ID, tn)
 		}

@@ -1,0 +1,243 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"flag"
+	"os"
+	"path/filepath"
+	"slices"
+	"sort"
+	"strings"
+	"testing"
+
+	"taut/configs"
+	"taut/monitor/instrument"
+	"taut/monitor/report"
+	"taut/monitor/sim"
+)
+
+// The -update flag rewrites the goldens; whichever test file declares it first
+// serves all of them.
+func init() {
+	if flag.Lookup("update") == nil {
+		flag.Bool("update", false, "rewrite golden files under testdata/")
+	}
+}
+
+func demoUpdate() bool {
+	f := flag.Lookup("update")
+	if f == nil {
+		return false
+	}
+	v, _ := f.Value.(flag.Getter).Get().(bool)
+	return v
+}
+
+// shortNight is the night the tests run: 5 hours, so the whole suite stays quick.
+var shortNight = []string{"--hours", "5"}
+
+func runDemo(t *testing.T, out string, args ...string) string {
+	t.Helper()
+	var stdout, stderr bytes.Buffer
+	args = append([]string{"--out", out}, args...)
+	if err := cmdDemo(context.Background(), args, &stdout, &stderr); err != nil {
+		t.Fatalf("demo %v: %v\n%s\n%s", args, err, stdout.String(), stderr.String())
+	}
+	return stdout.String()
+}
+
+// TestDemo_ShortNight runs a 5-hour night once and checks its summary against the
+// golden file, that it flags exactly the injected faults, that it says what it did,
+// and that the report renders in Chromium without console errors.
+func TestDemo_ShortNight(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a simulated night through the whole pipeline (about 2 s of CPU)")
+	}
+	out := t.TempDir()
+	stdout := runDemo(t, out, shortNight...)
+	sumPath := filepath.Join(out, report.SummaryName)
+	t.Run("Golden", func(t *testing.T) { checkDemoGolden(t, sumPath, out) })
+	t.Run("FlagsExactlyTheInjectedFaults", func(t *testing.T) { checkDemoFlags(t, sumPath) })
+	t.Run("Stdout", func(t *testing.T) {
+		for _, want := range []string{"Workshop lever harp", "injected faults:", "margin   B2", "winding  E2",
+			"slip     D5", "pull-up pass at 2.5 h", "→ 396 readings (0 unmatched", "audio-seconds per CPU-second",
+			"lamps (logging pins)", "CAUTION:", "report: " + filepath.Join(out, "report.html")} {
+			if !strings.Contains(stdout, want) {
+				t.Errorf("stdout lacks %q:\n%s", want, stdout)
+			}
+		}
+	})
+	t.Run("ReportShowsFaults", func(t *testing.T) {
+		page, err := os.ReadFile(filepath.Join(out, report.HTMLName))
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, want := range []string{"B2 — alarm — FLAGGED: margin", "E2 — alarm — FLAGGED: partials",
+			"D5 — alarm — FLAGGED: slip", "Caution: high tension", "partials shifted", "slip -3"} {
+			if !bytes.Contains(page, []byte(want)) {
+				t.Errorf("report.html lacks %q", want)
+			}
+		}
+	})
+	t.Run("Chromium", func(t *testing.T) {
+		page := filepath.Join(out, report.HTMLName)
+		problems, svgs := checkInChromium(t, page)
+		if len(problems) > 0 {
+			t.Errorf("console problems: %q", problems)
+		}
+		if svgs != 3+36 { // cents, margin, load, and one plot per string
+			t.Errorf("%d SVG plots, want 39", svgs)
+		}
+		writeScreenshot(t, page)
+	})
+}
+
+// checkDemoGolden compares summary.json, with the temporary directory replaced by
+// "OUT", against testdata/demo/summary.golden.json.
+func checkDemoGolden(t *testing.T, sumPath, out string) {
+	b, err := os.ReadFile(sumPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := strings.ReplaceAll(string(b), out, "OUT")
+	golden := filepath.Join("testdata", "demo", "summary.golden.json")
+	if demoUpdate() {
+		if err := os.MkdirAll(filepath.Dir(golden), 0o755); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(golden, []byte(got), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return
+	}
+	want, err := os.ReadFile(golden)
+	if err != nil {
+		t.Fatalf("%v (run go test ./cmd/taut -run TestDemo -update)", err)
+	}
+	if got != string(want) {
+		gl, wl := strings.Split(got, "\n"), strings.Split(string(want), "\n")
+		for i := range min(len(gl), len(wl)) {
+			if gl[i] != wl[i] {
+				t.Fatalf("summary.json differs from %s at line %d:\n got %s\nwant %s\n(run with -update to accept)",
+					golden, i+1, gl[i], wl[i])
+			}
+		}
+		t.Fatalf("summary.json differs from %s in length: %d vs %d lines", golden, len(gl), len(wl))
+	}
+}
+
+// checkDemoFlags: every injected fault is flagged on its string with its flag, and
+// no other string carries a flag.
+func checkDemoFlags(t *testing.T, sumPath string) {
+	cfg, err := instrument.Parse(configs.FS, "harp36.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	night, err := sim.NewNight(cfg, sim.Options{Seed: 1, Hours: 5})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := faultFlags(night)
+	var sum struct {
+		Flagged []string `json:"flagged"`
+		Strings []struct {
+			ID    string   `json:"id"`
+			Flags []string `json:"flags"`
+		} `json:"strings"`
+	}
+	b, err := os.ReadFile(sumPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(b, &sum); err != nil {
+		t.Fatal(err)
+	}
+	for _, s := range sum.Strings {
+		if !slices.Equal(s.Flags, want[s.ID]) {
+			t.Errorf("%s: flags %v, want %v", s.ID, s.Flags, want[s.ID])
+		}
+	}
+	var ids []string
+	for id := range want {
+		ids = append(ids, id)
+	}
+	sort.Strings(ids)
+	got := slices.Clone(sum.Flagged)
+	sort.Strings(got)
+	if !slices.Equal(got, ids) || len(ids) != 3 {
+		t.Errorf("flagged %v, want exactly %v", sum.Flagged, ids)
+	}
+}
+
+// faultFlags maps each injected fault to the report flag that must show it.
+func faultFlags(n *sim.Night) map[string][]string {
+	flag := map[sim.FaultKind]string{sim.FaultMargin: report.FlagMargin, sim.FaultWinding: report.FlagPartials,
+		sim.FaultSlip: report.FlagSlip}
+	out := map[string][]string{}
+	for _, f := range n.Faults {
+		out[f.String] = append(out[f.String], flag[f.Kind])
+	}
+	return out
+}
+
+func TestDemo_Args(t *testing.T) {
+	cases := []struct {
+		name string
+		args []string
+		want string
+	}{
+		{"Instrument", []string{"--instrument", "grand"}, "want harp or upright"},
+		{"Hours", []string{"--hours", "0.5"}, "want 1 to 48"},
+		{"Interval", []string{"--interval", "1m"}, "want 5m to 2h"},
+		{"Seed", []string{"--seed", "0"}, "want a positive seed"},
+		{"Extra", []string{"now"}, "unexpected arguments"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			var o, e bytes.Buffer
+			err := cmdDemo(context.Background(), tc.args, &o, &e)
+			var u usageError
+			if err == nil || !strings.Contains(err.Error(), tc.want) || !errors.As(err, &u) {
+				t.Errorf("err %v, want a usage error mentioning %q", err, tc.want)
+			}
+		})
+	}
+}
+
+func TestDemo_RefusesForeignDirectory(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "notes.txt"), []byte("mine"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	var o, e bytes.Buffer
+	err := cmdDemo(context.Background(), []string{"--out", dir, "--hours", "1"}, &o, &e)
+	if err == nil || !strings.Contains(err.Error(), "not written by taut demo") {
+		t.Fatalf("err %v, want a refusal", err)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "notes.txt")); err != nil {
+		t.Errorf("the demo touched a foreign file: %v", err)
+	}
+}
+
+// BenchmarkDemoNight runs the default 9-hour harp night through the whole pipeline
+// and reports audio-seconds per CPU-second next to the wall time per night.
+func BenchmarkDemoNight(b *testing.B) {
+	b.ReportAllocs()
+	var audioS, cpuS float64
+	for b.Loop() {
+		out := b.TempDir()
+		var o, e bytes.Buffer
+		c0 := cpuTime()
+		if err := cmdDemo(context.Background(), []string{"--out", out}, &o, &e); err != nil {
+			b.Fatal(err, e.String())
+		}
+		cpuS += (cpuTime() - c0).Seconds()
+		audioS += 684 * 1.25 // strikes × (ring + damped pause)
+	}
+	if cpuS > 0 {
+		b.ReportMetric(audioS/cpuS, "audio-s/cpu-s")
+	}
+}
