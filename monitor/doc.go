@@ -17,8 +17,24 @@
 // against the monotonic clock is journaled as KindClock; drift rates always use the
 // sample clock. Without LiveClock (replay, simulation) Time = StartTime + sample time
 // and MonoS = sample time. A source that delivers no frame for StallAfter raises a
-// KindFault "audio-stall" (reopening the source belongs to the reliability work; the
-// watchdog in run.go is the place for it).
+// KindFault "audio-stall".
+//
+// # Losing the source
+//
+// With Options.Reopen (live devices), a source whose Read fails (a USB microphone
+// unplugged) or stalls for StallAfter (a driver that stopped delivering: the stall
+// watchdog cancels the hanging Read) is closed and opened again, the first attempt at
+// once and then with capped exponential backoff (ReopenMin doubling up to ReopenMax,
+// 1 s and 30 s by default). A reopened source that fails within a minute keeps the
+// grown wait, so a flapping device is not reopened in a tight loop. The failure is
+// journaled as a KindFault ("audio", or "audio-stall"; a first failed attempt as
+// "audio-reopen") and the time the source was away as a KindGap with reason "reopen",
+// measured on the monotonic clock from its last frames to the new source's first,
+// which also moves the sample clock. A Read that does not return even when cancelled
+// (a driver stuck in C code) is reported as "audio-stuck": only a restart helps, and
+// the listener stops feeding systemd's watchdog while frames do not flow. A reopened
+// source with another format ends the run with an error. Without Reopen (files,
+// stdin: a pipe cannot be reopened) a failed source ends the run.
 //
 // # From audio to notes
 //

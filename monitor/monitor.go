@@ -56,8 +56,21 @@ type Options struct {
 	// Clock is the time source for LiveClock, rounds and the stall watchdog; nil means
 	// the real clock.
 	Clock clockwork.Clock
-	// StallAfter raises a fault when no frame arrived for this long; 0 disables.
+	// StallAfter raises a fault when no frame arrived for this long; 0 disables. With
+	// Reopen set, a stalled source is also cancelled, closed and reopened.
 	StallAfter time.Duration
+	// Reopen, if set, opens the audio source again after it failed (a Read error other
+	// than a gap or io.EOF: a USB microphone unplugged) or stalled (no frame for
+	// StallAfter: a driver that stopped delivering). The failed source is closed first
+	// when it has a Close method, so Close must tolerate a second call by its owner.
+	// Attempts are spaced by capped exponential backoff (ReopenMin doubling up to
+	// ReopenMax) until one succeeds or ctx ends; the lost time is journaled as a
+	// KindGap with reason "reopen". The new source must have the same Format. Nil: a
+	// failed source ends the run (right for files and stdin, which cannot be reopened).
+	Reopen func(ctx context.Context) (Source, error)
+	// ReopenMin and ReopenMax bound the wait between reopen attempts; 0 means 1 s and
+	// 30 s.
+	ReopenMin, ReopenMax time.Duration
 	// DropWhenBehind drops audio (counted, journaled as a "dropped" gap) when analysis
 	// falls behind, so a live device never overflows. False makes capture wait for
 	// analysis instead: right for files and pipes, which then lose nothing.
@@ -86,28 +99,33 @@ type Monitor struct {
 	quietHr quietHours
 
 	// Owned by the analysis goroutine (Run).
-	analyzer   *pitch.Analyzer
-	note       pitch.Note
-	trackers   []*tracker
-	matcher    matcher
-	lanes      []*lane
-	fit        fitScratch
-	frame      int64 // analysis sample clock: frames and gap frames since sample 0
-	nextQuiet  float64
-	entry      Entry // reused for every entry, so emitting allocates nothing
-	stateEntry Entry
-	prev       State
-	clk        liveClock
-	jDown      bool // journal appends are failing
-	resumed    int
-	hintMinHz  float64 // the analyser's search range
-	hintMaxHz  float64
-	clipLog    logLimiter
+	analyzer    *pitch.Analyzer
+	note        pitch.Note
+	trackers    []*tracker
+	matcher     matcher
+	lanes       []*lane
+	fit         fitScratch
+	frame       int64 // analysis sample clock: frames and gap frames since sample 0
+	nextQuiet   float64
+	entry       Entry // reused for every entry, so emitting allocates nothing
+	stateEntry  Entry
+	prev        State
+	clk         liveClock
+	jDown       bool // journal appends are failing
+	resumed     int
+	resumeClock *Entry  // a clock entry about resumed history from the future, emitted after start
+	hintMinHz   float64 // the analyser's search range
+	hintMaxHz   float64
+	clipLog     logLimiter
 
-	captured atomic.Int64 // capture-side sample clock, for Excite by the round scheduler
-	excites  exciteLog
-	events   chan Entry // faults from other goroutines, emitted by the analysis goroutine
-	stats    counters
+	captured  atomic.Int64 // capture-side sample clock, for Excite by the round scheduler
+	gate      readGate     // lets the stall watchdog cancel a Read that hangs
+	reopener  reopener     // owned by the capture goroutine
+	srcGen    atomic.Int64 // bumped when a reopened source takes over
+	reopening atomic.Bool  // capture is in reopen
+	excites   exciteLog
+	events    chan Entry // faults from other goroutines, emitted by the analysis goroutine
+	stats     counters
 }
 
 // New checks the options and prepares the analyser, the string trackers and the

@@ -43,13 +43,18 @@ func (m *Monitor) pool() (free, full chan *block) {
 // capture reads the source until EOF, an error or ctx ends, and queues the blocks for
 // analysis. With DropWhenBehind it never waits for analysis: when no block is free the
 // audio is read into scratch and dropped, counted and reported with the next block.
-// It closes full when done and returns the source's error (nil at EOF or on ctx end).
+// With Options.Reopen a failed or stalled source is replaced (see reopen) and capture
+// goes on. It closes full when done and returns the source's error (nil at EOF or on
+// ctx end).
 func (m *Monitor) capture(ctx context.Context, free, full chan *block) error {
 	defer close(full)
+	defer m.closeOwned()
+	defer m.gate.release()
 	scratch := make([]float32, m.blockFrames()*m.format.Channels)
 	var pending block // gap and drops not yet handed on
 	drops := logLimiter{every: 10 * time.Second}
 	var live liveSync
+	readCtx := m.gate.arm(ctx)
 	for {
 		b := m.takeFree(ctx, free)
 		if b == nil && ctx.Err() != nil {
@@ -59,16 +64,22 @@ func (m *Monitor) capture(ctx context.Context, free, full chan *block) error {
 		if b != nil {
 			dst = b.buf
 		}
-		n, err := m.src.Read(ctx, dst)
+		n, err := m.src.Read(readCtx, dst)
+		err = explainRead(ctx, readCtx, err)
 		gap, err := pending.addGap(err)
 		frames := int64(n / m.format.Channels)
+		if frames > 0 && m.reopener.gapPending {
+			gap += m.reopenGap(frames, &pending)
+		}
 		if m.opts.LiveClock && frames > 0 {
 			gap += m.resync(&live, frames+gap, &pending)
 		}
 		m.captured.Add(frames + gap)
 		if frames > 0 {
 			m.stats.framesRead.Add(frames)
-			m.stats.lastFrameNs.Store(m.clock.Now().UnixNano())
+			now := m.clock.Now()
+			m.reopener.lastFrame = now
+			m.stats.lastFrameNs.Store(now.UnixNano())
 		}
 		switch {
 		case b == nil && frames > 0:
@@ -81,6 +92,14 @@ func (m *Monitor) capture(ctx context.Context, free, full chan *block) error {
 			full <- b // never blocks: full has room for every block of the pool
 		}
 		if done, rerr := m.endOfRead(ctx, err); done {
+			if rerr != nil && m.opts.Reopen != nil && ctx.Err() == nil {
+				ok, ferr := m.reopen(ctx, rerr)
+				if ok {
+					readCtx = m.gate.arm(ctx)
+					continue
+				}
+				rerr = ferr // nil when ctx ended while reopening
+			}
 			m.flushPending(ctx, &pending, free, full)
 			return rerr
 		}

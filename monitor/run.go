@@ -76,6 +76,8 @@ func (m *Monitor) process(b *block) {
 			}
 		}
 		m.frame += b.gap
+	case b.reason == reasonReopen:
+		m.lostAudio(b.gap, b.reason, "the audio source was reopened after a failure; not captured:")
 	case b.reason != "":
 		m.lostAudio(b.gap, b.reason, "the source lost")
 	}
@@ -125,6 +127,11 @@ func (m *Monitor) emitStart() {
 	e.Detail = fmt.Sprintf("resumed %d strings; listening for %d strings on %d channel(s) at %d Hz",
 		m.resumed, len(m.trackers), m.format.Channels, m.format.SampleRate)
 	m.emit(e)
+	if rc := m.resumeClock; rc != nil {
+		c := m.newEntry(KindClock, 0)
+		c.ClockJumpS, c.Detail = rc.ClockJumpS, rc.Detail
+		m.emit(c)
+	}
 }
 
 // finish analyses notes cut short by the end, emits the queued events and the stop entry.
@@ -156,32 +163,73 @@ func (m *Monitor) finish(runErr error) {
 }
 
 // watch raises a fault when the source delivers no frame for StallAfter, and logs
-// when frames flow again. Reopening the source will hook in here.
+// when frames flow again. With Options.Reopen it also cancels the hanging Read, so that
+// capture closes and reopens the source; if the Read does not return even then (a
+// driver stuck in C code), it reports that only a restart can help: the listener's
+// systemd watchdog is no longer fed while frames do not flow. Elapsed time is measured
+// with Since (the monotonic clock), so a wall-clock jump is no stall.
 func (m *Monitor) watch(ctx context.Context) {
 	t := m.clock.NewTicker(min(m.opts.StallAfter/4, time.Second))
 	defer t.Stop()
-	last, since, stalled := m.captured.Load(), m.clock.Now(), false
+	w := stallWatch{last: m.captured.Load(), since: m.clock.Now(), gen: m.srcGen.Load()}
 	for {
 		select {
 		case <-ctx.Done():
 			return
 		case <-t.Chan():
 		}
-		now := m.clock.Now()
-		if c := m.captured.Load(); c != last {
-			last, since = c, now
-			if stalled {
-				stalled = false
-				m.log.Info().Msg("audio frames flow again")
-			}
-			continue
+		m.watchTick(&w)
+	}
+}
+
+// stallWatch is the state of watch between ticks.
+type stallWatch struct {
+	last     int64     // capture's sample clock at the last change
+	since    time.Time // when it last changed
+	gen      int64     // source generation watched
+	stalled  bool
+	kickedAt time.Time // when the hanging Read was cancelled (zero: not)
+	failures int64     // SourceFailures when it was cancelled
+	stuck    bool      // the stuck Read was reported
+}
+
+func (m *Monitor) watchTick(w *stallWatch) {
+	if g := m.srcGen.Load(); g != w.gen { // a reopened source: watch it afresh
+		*w = stallWatch{last: m.captured.Load(), since: m.clock.Now(), gen: g}
+		return
+	}
+	if m.reopening.Load() { // capture is replacing a failed source and says so itself
+		return
+	}
+	if c := m.captured.Load(); c != w.last {
+		if w.stalled {
+			m.log.Info().Msg("audio frames flow again")
 		}
-		if !stalled && now.Sub(since) >= m.opts.StallAfter {
-			stalled = true
-			d := fmt.Sprintf("no audio frames for %s: check the input device or the program feeding stdin",
-				now.Sub(since).Round(time.Second))
-			m.log.Error().Msg(d)
-			m.sendEvent(Entry{Kind: KindFault, Reason: "audio-stall", Detail: d})
+		*w = stallWatch{last: c, since: m.clock.Now(), gen: w.gen}
+		return
+	}
+	quiet := m.clock.Now().Sub(w.since)
+	if !w.stalled && quiet >= m.opts.StallAfter {
+		w.stalled = true
+		d := fmt.Sprintf("no audio frames for %s: check the input device or the program feeding stdin",
+			quiet.Round(time.Second))
+		if m.opts.Reopen != nil {
+			d = fmt.Sprintf("no audio frames for %s: closing and reopening the input device", quiet.Round(time.Second))
 		}
+		m.log.Error().Msg(d)
+		m.sendEvent(Entry{Kind: KindFault, Reason: "audio-stall", Detail: d})
+		if m.opts.Reopen != nil {
+			w.kickedAt, w.failures = m.clock.Now(), m.stats.sourceFailures.Load()
+			m.gate.kick(&stallError{after: quiet})
+		}
+	}
+	if !w.kickedAt.IsZero() && !w.stuck && m.stats.sourceFailures.Load() == w.failures &&
+		m.clock.Since(w.kickedAt) >= m.opts.StallAfter {
+		w.stuck = true
+		d := fmt.Sprintf("the audio source has not returned from a read %s after it was cancelled (a driver stuck "+
+			"inside the device call): only restarting the process can recover it; under systemd the watchdog does",
+			m.clock.Since(w.kickedAt).Round(time.Second))
+		m.log.Error().Msg(d)
+		m.sendEvent(Entry{Kind: KindFault, Reason: "audio-stuck", Detail: d})
 	}
 }

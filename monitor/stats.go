@@ -19,6 +19,10 @@ type Stats struct {
 	Unmatched     int64     // notes no string could claim
 	JournalErrors int64     // failed journal appends (the journal keeps and retries them)
 	LastFrame     time.Time // clock time when the source last delivered frames
+
+	SourceFailures int64 // times the source failed or stalled and a reopen began (Options.Reopen)
+	ReopenAttempts int64 // calls of Options.Reopen, failed or not
+	Reopens        int64 // reopens that put a new source in place
 }
 
 // counters are the atomic form of Stats, written by the capture and analysis goroutines.
@@ -26,6 +30,7 @@ type counters struct {
 	framesRead, framesDropped, gaps, notes, noPitch atomic.Int64
 	readings, unmatched, journalErrors              atomic.Int64
 	lastFrameNs                                     atomic.Int64
+	sourceFailures, reopenAttempts, reopens         atomic.Int64
 }
 
 func (c *counters) snapshot() Stats {
@@ -33,6 +38,7 @@ func (c *counters) snapshot() Stats {
 		FramesRead: c.framesRead.Load(), FramesDropped: c.framesDropped.Load(), Gaps: c.gaps.Load(),
 		Notes: c.notes.Load(), NoPitch: c.noPitch.Load(), Readings: c.readings.Load(),
 		Unmatched: c.unmatched.Load(), JournalErrors: c.journalErrors.Load(),
+		SourceFailures: c.sourceFailures.Load(), ReopenAttempts: c.reopenAttempts.Load(), Reopens: c.reopens.Load(),
 	}
 	if ns := c.lastFrameNs.Load(); ns != 0 {
 		s.LastFrame = time.Unix(0, ns)

@@ -9,7 +9,8 @@ const (
 // the partial series it led to is missing or leaves strong spectral lines unexplained. It weighs YIN's estimate (whose
 // refinement res and err already hold), YIN's other deep dips, and the strongest peak
 // of the spectrum taken as partial 1, 2 or 3, and returns the start frequency whose
-// partial series holds the most power. The octave check inside refine settles the
+// partial series holds the largest share of the energy in its analysis window (a share,
+// so that windows of different lengths over a decaying note compare fairly). The octave check inside refine settles the
 // remaining ties between a series and its sub-series.
 func (a *Analyzer) bestCandidate(res *result, err error, yinHz, minHz, maxHz float64) float64 {
 	best, bestPower := yinHz, -1.0

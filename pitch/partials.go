@@ -6,14 +6,16 @@ import (
 )
 
 const (
-	detectRatio   = 50   // a partial's peak must exceed the mean local noise power this much (17 dB) …
-	loneRatio     = 1000 // … and a lone partial (a plain sine) this much (30 dB)
-	relFloor      = 1e-6 // … and be within 60 dB of the strongest partial found
-	searchWidth   = 0.25 // search ±this share of f0 around each predicted partial
-	outlierZ      = 6.0  // drop a partial whose fit residual exceeds this many standard deviations
-	maxFixes      = 3    // octave corrections per note
-	maxMissingLow = 3    // a series must show one of its first three partials
-	semitone      = 1.0594630943592953
+	detectRatio      = 50   // a partial's peak must exceed the mean local noise power this much (17 dB) …
+	loneRatio        = 1000 // … and a lone partial (a plain sine) this much (30 dB)
+	relFloor         = 1e-6 // … and be within 60 dB of the strongest partial found
+	searchWidth      = 0.25 // search ±this share of f0 around each predicted partial …
+	retrackWidth     = 0.05 // … and, in the second pass around the fitted series, ±this share
+	outlierZ         = 6.0  // drop a partial whose fit residual exceeds this many standard deviations
+	outlierFloorBins = 0.05 // … with at least this deviation in bins allowed for
+	maxFixes         = 3    // octave corrections per note
+	maxMissingLow    = 3    // a series must show one of its first three partials
+	semitone         = 1.0594630943592953
 )
 
 // partialEst is one detected partial with what the fit needs.
@@ -27,7 +29,7 @@ type partialEst struct {
 // result is the outcome of the spectral stage.
 type result struct {
 	f0Hz, b, clarity float64
-	power            float64 // sum of the partials' squared amplitudes
+	power            float64 // share of the windowed signal's energy in the partials
 	explained        float64 // share of the band's significant peak power in the partials
 	used             int
 }
@@ -45,6 +47,8 @@ func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
 			return ErrNoPitch
 		}
 		f0, b := a.fitPartials()
+		a.retrack(f0, b)
+		f0, b = a.fitPartials()
 		if len(a.parts) == 1 && a.parts[0].local < loneRatio {
 			return ErrNoPitch
 		}
@@ -67,8 +71,9 @@ func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
 		res.explained = a.explained(f0)
 		res.power = 0
 		for _, p := range a.parts {
-			res.power += math.Pow(10, p.db/10)
+			res.power += a.spec.power[p.k]
 		}
+		res.power /= a.spec.full
 		if res.clarity < minClarity {
 			return ErrNoPitch
 		}
@@ -76,35 +81,74 @@ func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
 	}
 }
 
-// track searches partials n = 1..MaxPartials near n·f0·sqrt(1+B·n²), refitting f0 and
-// B after every partial found so that the prediction follows the stretch of the series.
+// track searches partials n = 1..MaxPartials near n·f0·sqrt(1+B·n²), starting from
+// f0 = startHz, B = 0, refitting f0 and B after every partial found so that the
+// prediction follows the stretch of the series.
 func (a *Analyzer) track(startHz float64) {
-	sp := &a.spec
 	a.parts = a.parts[:0]
 	f0, b := startHz, 0.0
 	var strongest float64
 	for n := 1; n <= a.cfg.MaxPartials; n++ {
-		pred := modelHz(n, f0, b)
-		if pred > float64(sp.kmax)*sp.binHz {
+		p, ok, past := a.detect(n, modelHz(n, f0, b), searchWidth*f0, f0, strongest)
+		if past {
 			break
 		}
-		k := sp.localMax(pred-searchWidth*f0, pred+searchWidth*f0)
-		if k < 0 {
-			continue
+		if ok {
+			strongest = math.Max(strongest, a.spec.power[p.k])
+			a.parts = append(a.parts, p)
+			f0, b = a.predictModel(f0, b)
 		}
-		floor := a.localFloor(k, f0)
-		if sp.power[k] < detectRatio*floor || sp.power[k] < relFloor*max(strongest, sp.full) {
-			continue
-		}
-		hz, power := sp.peak(k)
-		strongest = math.Max(strongest, power)
-		// The fit's weights use the band's noise floor: local floors between closely
-		// spaced partials are set by the partials' own skirts, not by the noise.
-		snr := power / math.Max(sp.floor, 1e-300)
-		a.parts = append(a.parts, partialEst{n: n, hz: hz, db: sp.amplitudeDB(power), snr: snr,
-			sd: sp.binSigmaHz(snr), local: sp.power[k] / math.Max(floor, 1e-300), k: k})
-		f0, b = a.predictModel(f0, b)
 	}
+}
+
+// retrack searches all partials again close to the fitted series, which recovers
+// partials that the first pass missed while its prediction was still rough (or took
+// from a neighbouring line and later dropped). It keeps the new list unless it is
+// shorter.
+func (a *Analyzer) retrack(f0, b float64) {
+	prev := a.parts
+	a.parts = a.parts2[:0]
+	half := math.Max(retrackWidth*f0, 3*a.spec.binHz)
+	var strongest float64
+	for _, p := range prev {
+		strongest = math.Max(strongest, a.spec.power[p.k])
+	}
+	for n := 1; n <= a.cfg.MaxPartials; n++ {
+		p, ok, past := a.detect(n, modelHz(n, f0, b), half, f0, strongest)
+		if past {
+			break
+		}
+		if ok {
+			a.parts = append(a.parts, p)
+		}
+	}
+	a.parts2 = prev
+	if len(a.parts) < len(prev) {
+		a.parts, a.parts2 = prev, a.parts
+	}
+}
+
+// detect looks for partial n within ±halfHz of predHz. past reports that the
+// prediction lies beyond the band.
+func (a *Analyzer) detect(n int, predHz, halfHz, f0, strongest float64) (p partialEst, ok, past bool) {
+	sp := &a.spec
+	if predHz > float64(sp.kmax)*sp.binHz {
+		return p, false, true
+	}
+	k := sp.localMax(predHz-halfHz, predHz+halfHz)
+	if k < 0 {
+		return p, false, false
+	}
+	floor := a.localFloor(k, f0)
+	if sp.power[k] < detectRatio*floor || sp.power[k] < relFloor*max(strongest, sp.full) {
+		return p, false, false
+	}
+	hz, power := sp.peak(k)
+	// The fit's weights use the band's noise floor: local floors between closely spaced
+	// partials are set by the partials' own skirts, not by the noise.
+	snr := power / math.Max(sp.floor, 1e-300)
+	return partialEst{n: n, hz: hz, db: sp.amplitudeDB(power), snr: snr, sd: sp.binSigmaHz(snr),
+		local: sp.power[k] / math.Max(floor, 1e-300), k: k}, true, false
 }
 
 // predictModel updates the running f0 and B from the partials found so far. B is kept
@@ -146,9 +190,13 @@ func (a *Analyzer) fitPartials() (f0, b float64) {
 			a.parts = a.parts[:1]
 			continue
 		}
+		// Residuals are judged against the noise and a floor of a twentieth of a bin:
+		// other sounds' lines nearby shift strong partials by more than their noise
+		// alone would allow, and such partials are still good.
+		floor := outlierFloorBins * a.spec.rate / float64(a.spec.l)
 		worst, worstZ := -1, outlierZ
 		for i, p := range a.parts {
-			if z := math.Abs(p.hz-modelHz(p.n, f0, b)) / p.sd; z > worstZ {
+			if z := math.Abs(p.hz-modelHz(p.n, f0, b)) / math.Hypot(p.sd, floor); z > worstZ {
 				worst, worstZ = i, z
 			}
 		}

@@ -95,7 +95,8 @@ type Analyzer struct {
 	yinD        [yinFrames][]float64
 	yinDP       [yinFrames][]float64
 	parts       []partialEst
-	cands       []float64 // alternative YIN estimates (Hz) when no dip is below the threshold
+	parts2      []partialEst // the other list of retrack
+	cands       []float64    // alternative YIN estimates (Hz) when no dip is below the threshold
 	spec        spectrum
 	levelSum    float64 // sum of squares of the loaded samples
 }
@@ -127,6 +128,7 @@ func New(cfg Config) (*Analyzer, error) {
 		a.yinDP[i] = make([]float64, tauMax+1)
 	}
 	a.parts = make([]partialEst, 0, cfg.MaxPartials)
+	a.parts2 = make([]partialEst, 0, cfg.MaxPartials)
 	a.cands = make([]float64, 0, maxCands)
 	return a, nil
 }

@@ -27,8 +27,8 @@ func makeRecording() recording {
 		r.tones = append(r.tones, tone)
 	}
 	add(0.3, synth.Tone{F0Hz: 55, B: 2e-4, Partials: 16, FirstDB: -20, DecayS: 3, ThumpS: 0.01, Seed: 1}, 1.2)
-	add(1.5, synth.Tone{F0Hz: 261.6256, B: 3.5e-4, Partials: 16, DecayS: 1.5, ThumpS: 0.01, Seed: 2}, 2.5)
-	add(2.3, synth.Tone{F0Hz: 293.6648, B: 4e-4, Partials: 16, DecayS: 0.6, ThumpS: 0.01, Seed: 3}, 1.7)
+	add(1.5, synth.Tone{F0Hz: 261.6256, B: 3.5e-4, Partials: 16, DecayS: 0.5, ThumpS: 0.01, Seed: 2}, 2.5)
+	add(2.3, synth.Tone{F0Hz: 293.6648, B: 4e-4, Partials: 16, DecayS: 0.4, ThumpS: 0.01, Seed: 3}, 1.7)
 	add(3.2, synth.Tone{F0Hz: 2093.005, B: 7.8e-3, Partials: 8, DecayS: 0.3, ThumpS: 0.005, Seed: 4}, 0.8)
 	synth.AddNoise(r.x, 50, rand.New(rand.NewPCG(1, 1)))
 	return r

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/rs/zerolog"
@@ -29,6 +30,7 @@ type nightResult struct {
 	audioS  float64       // seconds of audio rendered and analysed
 	lamps   *lampLog
 	serve   func(ctx context.Context, stdout io.Writer) error
+	mon     atomic.Pointer[monitor.Monitor] // for the status page's counters
 }
 
 // runNight plays the night into a synthetic source and runs the real monitor on it,
@@ -43,23 +45,23 @@ func runNight(ctx context.Context, night *sim.Night, jdir string, df *demoFlags,
 	if err != nil {
 		return nil, fmt.Errorf("demo: open journal: %w", err)
 	}
-	res := &nightResult{lamps: &lampLog{}}
+	res := &nightResult{lamps: &lampLog{}, serve: func(context.Context, io.Writer) error { return nil }}
+	// The sinks outlive an interrupted ctx long enough to be stopped in order.
 	sinkCtx, stopSinks := context.WithCancel(context.WithoutCancel(ctx))
-	sinks, closeSinks, err := demoSinks(ctx, sinkCtx, night, df, res, log)
+	sinks, closeSinks, err := demoSinks(sinkCtx, night, df, res, log)
 	if err != nil {
 		stopSinks()
 		w.Close()
 		return nil, err
 	}
 	src := capture.NewSynthSource(capture.Format{SampleRate: night.Options.RateHz, Channels: 1})
-	var mon *monitor.Monitor
-	res.serve = func(ctx context.Context, stdout io.Writer) error { return nil }
-	mon, err = monitor.New(monitor.Options{
+	mon, err := monitor.New(monitor.Options{
 		Config: night.Config, Source: sim.Noisy(src, demoNoiseRMS, df.seed), Journal: w, Sinks: sinks,
 		Logger: log.Level(zerolog.WarnLevel).With().Str("component", "monitor").Logger(), StartTime: demoStart,
 		RunID: fmt.Sprintf("demo-%s-seed%d", df.instrument, df.seed),
 	})
 	if err == nil {
+		res.mon.Store(mon)
 		err = playNight(ctx, night, src, mon, res)
 	}
 	if cerr := w.Close(); err == nil && cerr != nil {
@@ -100,7 +102,7 @@ func playNight(ctx context.Context, night *sim.Night, src *capture.SynthSource, 
 // demoSinks starts the lamps (logging pins) and, with --serve, the status page. The
 // returned close function stops them; keep=true leaves the status page running for
 // serveUntilDone instead.
-func demoSinks(ctx, sinkCtx context.Context, night *sim.Night, df *demoFlags, res *nightResult,
+func demoSinks(sinkCtx context.Context, night *sim.Night, df *demoFlags, res *nightResult,
 	log zerolog.Logger) ([]monitor.Sink, func(keep bool, stop func()), error) {
 	board, err := setupLamps(night.Config.Lamps, true, log.With().Str("component", "lamps").Logger())
 	if err != nil {
@@ -112,7 +114,7 @@ func demoSinks(ctx, sinkCtx context.Context, night *sim.Night, df *demoFlags, re
 	sinks := []monitor.Sink{board, res.lamps}
 	var srv *status.Server
 	if df.serve != "" {
-		srv, err = startStatus(sinkCtx, df.serve, night.Config, func() status.Stats { return status.Stats{} },
+		srv, err = startStatus(sinkCtx, df.serve, night.Config, res.statusStats,
 			log.With().Str("component", "http").Logger())
 		if err != nil {
 			stopLamps()
@@ -137,6 +139,17 @@ func demoSinks(ctx, sinkCtx context.Context, night *sim.Night, df *demoFlags, re
 		}
 	}
 	return sinks, closeAll, nil
+}
+
+// statusStats gives the status page the monitor's counters (none before it exists).
+func (r *nightResult) statusStats() status.Stats {
+	var s status.Stats
+	if m := r.mon.Load(); m != nil {
+		ms := m.Stats()
+		s.FramesRead, s.FramesDropped, s.Gaps = uint64(ms.FramesRead), uint64(ms.FramesDropped), uint64(ms.Gaps)
+		s.Readings, s.Unmatched, s.LastFrame = uint64(ms.Readings), uint64(ms.Unmatched), ms.LastFrame
+	}
+	return s
 }
 
 func (r *nightResult) serveUntilDone(ctx context.Context, stdout io.Writer) error {

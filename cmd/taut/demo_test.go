@@ -226,6 +226,15 @@ func TestDemo_RefusesForeignDirectory(t *testing.T) {
 // and reports audio-seconds per CPU-second next to the wall time per night.
 func BenchmarkDemoNight(b *testing.B) {
 	b.ReportAllocs()
+	cfg, err := instrument.Parse(configs.FS, "harp36.toml")
+	if err != nil {
+		b.Fatal(err)
+	}
+	night, err := sim.NewNight(cfg, sim.Options{Seed: 1})
+	if err != nil {
+		b.Fatal(err)
+	}
+	perNight := float64(night.Strikes()) * float64(night.SlotFrames()) / float64(night.Options.RateHz)
 	var audioS, cpuS float64
 	for b.Loop() {
 		out := b.TempDir()
@@ -235,7 +244,7 @@ func BenchmarkDemoNight(b *testing.B) {
 			b.Fatal(err, e.String())
 		}
 		cpuS += (cpuTime() - c0).Seconds()
-		audioS += 684 * 1.25 // strikes × (ring + damped pause)
+		audioS += perNight
 	}
 	if cpuS > 0 {
 		b.ReportMetric(audioS/cpuS, "audio-s/cpu-s")

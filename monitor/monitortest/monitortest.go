@@ -124,15 +124,19 @@ var Evening = time.Date(2031, time.March, 14, 21, 0, 0, 0, time.UTC)
 func Clock() *clockwork.FakeClock { return clockwork.NewFakeClockAt(Evening) }
 
 // JumpClock is a fake clock whose wall time (Now) can jump while elapsed time (Since,
-// After, timers) does not: a board whose clock is set by NTP after boot.
+// After, timers) does not: a board whose clock is set by NTP after boot. Like a
+// time.Time read from time.Now, which carries a monotonic reading, every time Now
+// returned remembers the elapsed time at which it was read, so Since measures elapsed
+// time across jumps.
 type JumpClock struct {
 	*clockwork.FakeClock
 	mu     sync.Mutex
 	offset time.Duration
+	mono   map[int64]time.Time // wall time returned by Now (UnixNano) → fake time then
 }
 
 // NewJumpClock returns a JumpClock at Evening.
-func NewJumpClock() *JumpClock { return &JumpClock{FakeClock: Clock()} }
+func NewJumpClock() *JumpClock { return &JumpClock{FakeClock: Clock(), mono: map[int64]time.Time{}} }
 
 // Jump moves the wall clock by d.
 func (c *JumpClock) Jump(d time.Duration) {
@@ -145,14 +149,20 @@ func (c *JumpClock) Jump(d time.Duration) {
 func (c *JumpClock) Now() time.Time {
 	c.mu.Lock()
 	defer c.mu.Unlock()
-	return c.FakeClock.Now().Add(c.offset)
+	fake := c.FakeClock.Now()
+	wall := fake.Add(c.offset)
+	c.mono[wall.UnixNano()] = fake
+	return wall
 }
 
 // Since returns the elapsed time since t without the jumps, as Go's monotonic clock
-// does for a time.Time read from time.Now. It holds for t read from Now after the
-// latest jump.
+// does for a time.Time read from time.Now. A t this clock did not return is taken as
+// a wall time read after the latest jump.
 func (c *JumpClock) Since(t time.Time) time.Duration {
 	c.mu.Lock()
 	defer c.mu.Unlock()
+	if fake, ok := c.mono[t.UnixNano()]; ok {
+		return c.FakeClock.Now().Sub(fake)
+	}
 	return c.FakeClock.Now().Sub(t.Add(-c.offset))
 }

@@ -52,6 +52,7 @@ type row struct {
 	Reasons                               []string
 	Cents, Rate, Steady, Ahead            string
 	Tension, Margin, Model, PullUp, Basis string
+	Share                                 string // share of the raise expected back, e.g. "30 %"
 }
 
 type panel struct {
@@ -125,7 +126,7 @@ func rowOf(s *String) row {
 	}
 	if s.MaxMargin > 0 {
 		r.Margin = fmt.Sprintf("%.0f %%", 100*s.Margin)
-		if s.MaxMargin > s.Margin+0.005 {
+		if math.Round(100*s.MaxMargin) > math.Round(100*s.Margin) {
 			r.Margin += fmt.Sprintf(" (max %.0f %%)", 100*s.MaxMargin)
 		}
 	}
@@ -145,6 +146,9 @@ func rowOf(s *String) row {
 	}
 	r.Model = string(an.Fit.Model)
 	r.PullUp = pullUpText(an)
+	if g := an.Suggest; g.RaiseCents > 0 && g.Share > 0 {
+		r.Share = fmt.Sprintf("%.0f %%", 100*g.Share)
+	}
 	return r
 }
 
@@ -172,9 +176,9 @@ func pullUpText(an *settle.Analysis) string {
 	case s.RaiseCents < 0:
 		return fmt.Sprintf("lower %.1f ¢", -s.RaiseCents)
 	case s.Share == 0:
-		return fmt.Sprintf("check the pin first, then raise %.1f ¢ to pitch", s.RaiseCents)
+		return fmt.Sprintf("check pin, then +%.1f ¢", s.RaiseCents)
 	}
-	return fmt.Sprintf("raise %.1f ¢ → %+.1f (falls back %.0f %%)", s.RaiseCents, s.AimCents, 100*s.Share)
+	return fmt.Sprintf("+%.1f ¢ → aim %+.1f", s.RaiseCents, s.AimCents)
 }
 
 func panelHeading(s *String) string {

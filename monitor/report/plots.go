@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"taut/monitor/settle"
 )
@@ -24,6 +25,9 @@ func (r *Report) stringPlot(s *String, hoursMax float64) string {
 	p.hline(0, "target", "")
 	if a, ok := s.alarms["partials"]; ok && finite(a.hours) {
 		p.vline(a.hours, "alarm-line", "partials shifted")
+	}
+	if slices.Contains(s.Flags, FlagMargin) {
+		p.text(p.left+4, p.top+11, fmt.Sprintf("tension at %.0f %% of breaking load", 100*s.MaxMargin), "start", "note-label slip-label")
 	}
 	p.fitted(an)
 	out := outlierSet(an.Events)

@@ -9,11 +9,11 @@
 //	c(t) = c0 − b·ln(1 + t/t0),
 //
 // with a magnitude b that depends on the construction: nylon 6–9 cents per unit of
-// ln(1 + t/t0), fluorocarbon 4–6, gut 2.5–4, wound strings 0.4–0.9, plain steel
-// 0.3–0.7; t0 is 0.2–0.8 h. Polymer strings creep far more than gut, and gut more
-// than metal (viscoelastic creep; reference-values §4.3 suggests the log-time form
-// and notes that steel settles mostly by slips at bearing points). The ranges are
-// invented for the demo, not measured.
+// ln(1 + t/t0), fluorocarbon 4–6, gut 2.5–4, plain steel 1.5–3, wound strings
+// 0.8–1.6; t0 is 0.2–0.8 h. Polymer strings creep far more than gut, and gut more
+// than metal (viscoelastic creep; reference-values §4.3 suggests the log-time form);
+// new plain piano wire also sags as it seats at its bearing points (§4.3, trade).
+// The ranges are invented for the demo, not measured.
 //
 // Midway through the night the restorer does one pull-up pass: every string flatter
 // than 3 cents is raised by −c/(1−s), s being the trade share a raise is expected to

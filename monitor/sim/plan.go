@@ -35,13 +35,15 @@ type raise struct{ atH, cents, creepB float64 }
 
 // creepOf gives the invented but physically motivated creep of each construction:
 // polymer strings creep far more than gut, and gut more than steel or wound strings
-// (viscoelastic creep, reference-values §4.3; steel settles mostly by slips at bearing
-// points). The numbers are ours: magnitude range in cents per ln-unit, t0 range in
+// (viscoelastic creep, reference-values §4.3). New plain piano wire also sags as it
+// seats at its bearing points (a trade report speaks of a quarter tone or more over
+// the first passes, reference-values §4.3), so plain steel gets more than wound
+// strings. The numbers are ours: magnitude range in cents per ln-unit, t0 range in
 // hours, and the share of a raise given back.
 func creepOf(material string, wound bool) (bLo, bHi, t0Lo, t0Hi, share float64) {
 	switch {
 	case wound:
-		return 0.4, 0.9, 0.3, 0.8, 0.10
+		return 0.8, 1.6, 0.3, 0.8, 0.10
 	case material == "nylon":
 		return 6, 9, 0.3, 0.8, 0.35
 	case material == "fluorocarbon":
@@ -49,7 +51,7 @@ func creepOf(material string, wound bool) (bLo, bHi, t0Lo, t0Hi, share float64) 
 	case material == "gut":
 		return 2.5, 4, 0.3, 0.8, 0.25
 	default: // plain steel and other metals
-		return 0.3, 0.7, 0.2, 0.6, 0.12
+		return 1.5, 3, 0.2, 0.6, 0.12
 	}
 }
 

@@ -95,7 +95,8 @@ func TestNewNight_NylonCreepsMoreThanWound(t *testing.T) {
 			wound = append(wound, sag)
 		}
 	}
-	if slices.Max(nylon) > -10 || slices.Min(wound) < -4 {
+	// Every nylon string sags more than every wound string, by creep alone.
+	if slices.Max(nylon) > -10 || slices.Max(nylon) >= slices.Min(wound) || slices.Min(wound) < -5.5 {
 		t.Errorf("sag at 4 h: nylon %v, wound %v", nylon, wound)
 	}
 }

@@ -207,6 +207,10 @@ func TestBrowser_liveStatusPage(t *testing.T) {
 	waitJS(t, ctx, "wall tiles", `document.querySelectorAll('#tiles li').length === 36 &&
 		getComputedStyle(document.querySelector('.table-wrap')).display === 'none' &&
 		getComputedStyle(document.querySelector('#tiles')).display === 'grid'`)
+	// A wall cannot scroll: one row of cards, the rest named on a last card.
+	if got := evalString(t, ctx, `[...document.querySelectorAll('#attention li')].map(e => e.dataset.string || e.querySelector('.id').textContent).join(' ')`); got != "G3 B4 A2 C4 D5 +4 more" {
+		t.Errorf("wall attention cards %q", got)
+	}
 
 	// Twenty minutes without a reading: the stale banner.
 	fc.Advance(20 * time.Minute)
@@ -260,6 +264,11 @@ func TestScreenshots(t *testing.T) {
 	}
 	ctx := startBrowser(t, 1280, 900)
 	console := watchConsole(ctx)
+	defer func() {
+		if p := console.problems(); len(p) > 0 {
+			t.Error(errors.New(strings.Join(p, "\n")))
+		}
+	}()
 	for _, sh := range shots {
 		fc.Advance(sh.staleBy)
 		var vp []chromedp.EmulateViewportOption
@@ -280,9 +289,22 @@ func TestScreenshots(t *testing.T) {
 			shoot(t, ctx, sh.name+"-table.png", chromedp.CaptureScreenshot())
 		}
 	}
-	if p := console.problems(); len(p) > 0 {
-		t.Error(errors.New(strings.Join(p, "\n")))
+
+	// A whole piano on the wall display.
+	pcfg, pentries := pianoNight(now)
+	ps := New(pcfg, Options{Clock: clockwork.NewFakeClockAt(now), Version: "v0.1.0-demo"})
+	for _, e := range pentries {
+		ps.Publish(e)
 	}
+	pts := httptest.NewServer(ps.Handler())
+	defer pts.Close()
+	defer ps.StopStreams()
+	if err := chromedp.Do(ctx, chromedp.EmulateViewport(1920, 1080), chromedp.Navigate(pts.URL+"/?display=wall")); err != nil {
+		t.Fatal(err)
+	}
+	waitJS(t, ctx, "the piano rendered", `document.querySelectorAll('#tiles li').length === `+fmt.Sprint(len(pcfg.Instrument.Strings)))
+	time.Sleep(200 * time.Millisecond)
+	shoot(t, ctx, "wall-piano.png", chromedp.FullScreenshot(100))
 }
 
 func shoot(t *testing.T, ctx context.Context, name string, a chromedp.Action[[]byte]) {

@@ -132,3 +132,42 @@ func publishNight(s *Server, fc *clockwork.FakeClock, entries []monitor.Entry, n
 		fc.Advance(d)
 	}
 }
+
+// pianoNight is an invented upright being re-strung: 224 strings (single, double and
+// triple unisons), most steady, a block of new treble strings settling, a few alarms;
+// it checks that a whole piano fits the wall display.
+func pianoNight(now time.Time) (*instrument.Config, []monitor.Entry) {
+	cfg := &instrument.Config{Instrument: instrument.Instrument{Name: "Upright re-string, full scale (demo)", ReferenceHz: note.A4}}
+	cfg.Listen.MarginWarn, cfg.Listen.MarginAlarm = 0.70, 0.85
+	var out []monitor.Entry
+	for midi := 21; midi <= 108; midi++ {
+		unisons := 3
+		switch {
+		case midi < 33:
+			unisons = 1
+		case midi < 49:
+			unisons = 2
+		}
+		for u := range unisons {
+			id := note.Name(midi) + string(rune('a'+u))
+			cfg.Instrument.Strings = append(cfg.Instrument.Strings, instrument.String{ID: id, Note: note.Name(midi), TargetHz: note.Hz(midi, note.A4)})
+			d := demoState{monitor.Steady, float64((midi+u)%7)*0.3 - 0.9, 0.1, ""}
+			switch {
+			case midi >= 72 && midi < 80:
+				d = demoState{monitor.Settling, -6 - float64(u), -2.5, "drift"}
+			case midi == 60 && u == 1:
+				d = demoState{monitor.Alarm, -41, -0.4, "jump"}
+			case midi == 45:
+				d = demoState{monitor.OffTarget, 4.2, 0.1, "drift"}
+			}
+			out = append(out, monitor.Entry{Kind: monitor.KindReading, Time: now.Add(-time.Duration(len(out)) * 10 * time.Second),
+				String: id, F0Hz: note.Hz(midi, note.A4), Cents: d.cents, TensionN: 700, Margin: 0.5,
+				RateCentsHour: d.rate, State: d.state, Reason: d.reason})
+		}
+	}
+	slices.Reverse(out) // oldest first
+	for i := range out {
+		out[i].Seq = uint64(i + 1)
+	}
+	return cfg, out
+}

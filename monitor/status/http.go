@@ -54,13 +54,14 @@ func securityHeaders(next http.Handler) http.Handler {
 }
 
 type pageData struct {
-	Title   string
-	Display string // "" or "wall"
-	Version string
+	Title    string
+	Display  string // "" or "wall"
+	Version  string
+	Snapshot Snapshot // rendered at once, so the page is complete before its stream connects
 }
 
 func (s *Server) servePage(w http.ResponseWriter, r *http.Request) {
-	d := pageData{Title: s.cfg.Instrument.Name, Version: s.opts.Version}
+	d := pageData{Title: s.cfg.Instrument.Name, Version: s.opts.Version, Snapshot: s.Snapshot()}
 	if d.Title == "" {
 		d.Title = "taut"
 	}

@@ -95,10 +95,12 @@ func rowsFromConfig(cfg *instrument.Config) ([]StringStatus, map[string]int) {
 // apply copies a reading's (or a state entry's) figures into the row.
 func (r *StringStatus) apply(e *monitor.Entry, now time.Time) {
 	r.Seq = e.Seq
-	r.State = e.State
-	if e.Kind == monitor.KindState {
+	// A state entry always says why (possibly nothing); a reading's reason counts
+	// when it has one or when the state changed with it.
+	if e.Kind == monitor.KindState || e.Reason != "" || e.State != r.State {
 		r.Reason = e.Reason
 	}
+	r.State = e.State
 	if e.Kind != monitor.KindReading && e.F0Hz == 0 {
 		return // a state entry without reading figures (e.g. gone quiet)
 	}
@@ -143,7 +145,7 @@ func (r *ring) push(e Event) {
 
 func (r *ring) list() []Event {
 	if !r.full {
-		return append([]Event(nil), r.buf[:r.next]...)
+		return append([]Event{}, r.buf[:r.next]...) // [] not null in JSON
 	}
 	out := make([]Event, 0, len(r.buf))
 	out = append(out, r.buf[r.next:]...)

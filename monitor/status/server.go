@@ -208,7 +208,7 @@ func (s *Server) snapshotLocked() Snapshot {
 		StaleAfterS: s.opts.StaleAfter.Seconds(),
 		MarginWarn:  s.marginWarn, MarginAlarm: s.marginAlarm,
 		Unmatched: s.unmatched,
-		Strings:   append([]StringStatus(nil), s.rows...),
+		Strings:   append([]StringStatus{}, s.rows...), // [] not null in JSON
 		Events:    s.events.list(),
 	}
 	if !s.lastReading.IsZero() {

@@ -12,6 +12,7 @@ import (
 	"github.com/jonboulle/clockwork"
 
 	"taut/monitor"
+	"taut/monitor/instrument"
 )
 
 func TestServer_Publish(t *testing.T) {
@@ -224,5 +225,37 @@ func TestServer_Health(t *testing.T) {
 				t.Errorf("got %d %q, want %d %q", r.StatusCode, got, tt.code, tt.reason)
 			}
 		})
+	}
+}
+
+// TestHandler_pageCarriesSnapshot: the page holds the state it was served with, as
+// JSON the script can parse, so it is complete before the event stream connects.
+func TestHandler_pageCarriesSnapshot(t *testing.T) {
+	s := New(testConfig(), Options{Clock: clockwork.NewFakeClockAt(t0)})
+	s.Publish(readingEntry(9, "D3", monitor.Alarm, -30))
+	s.Publish(monitor.Entry{Seq: 10, Kind: monitor.KindFault, Reason: "journal", Detail: `disk </script><b>full</b>`})
+	b := body(t, get(t, s.Handler(), "GET", "/"))
+	const open = `<script type="application/json" id="initial">`
+	i := strings.Index(b, open)
+	j := strings.Index(b[i+len(open):], "</script>")
+	if i < 0 || j < 0 {
+		t.Fatal("no initial snapshot in the page")
+	}
+	snap := decode[Snapshot](t, b[i+len(open):i+len(open)+j])
+	if snap.Rev != 2 || snap.Strings[2].State != monitor.Alarm || snap.Events[0].Detail != `disk </script><b>full</b>` {
+		t.Errorf("embedded snapshot rev %d, D3 %v, event %+v", snap.Rev, snap.Strings[2].State, snap.Events)
+	}
+}
+
+// TestHandler_emptyLists: a fresh server sends [] (not null) for the lists the page
+// iterates over.
+func TestHandler_emptyLists(t *testing.T) {
+	b := body(t, get(t, New(testConfig(), Options{}).Handler(), "GET", "/api/strings"))
+	if !strings.Contains(b, `"events": []`) {
+		t.Errorf("events are not an empty list in %s", b)
+	}
+	b = body(t, get(t, New(&instrument.Config{}, Options{}).Handler(), "GET", "/api/strings"))
+	if !strings.Contains(b, `"strings": []`) {
+		t.Errorf("strings are not an empty list in %s", b)
 	}
 }

@@ -8,6 +8,7 @@
   const LABEL = { alarm: "alarm", "off-target": "off target", settling: "settling", steady: "steady", quiet: "quiet" };
   const LOST_AFTER_MS = 10000; // a connection down this long makes the data stale
   const TICK_MS = 5000;
+  const WALL_CARDS = 6; // cards in one row of the wall display
 
   const state = {
     snap: null,           // the last snapshot, kept up to date by updates
@@ -115,7 +116,7 @@
         case "margin": return "Tension at " + pct + " of the estimated breaking load.";
         case "jump": return "Sudden pitch change: check for a slipped tuning pin or a broken string.";
         case "partials": return "Partials have shifted: check the winding and the bridge pin.";
-        default: return "Alarm" + (s.reason ? " (" + s.reason + ")" : "") + ".";
+        default: return "Alarm" + (s.reason ? " (" + s.reason + ")" : "") + ": see the recent events and the journal.";
       }
     }
     if (marginLevel(s)) return "Tension at " + pct + " of the estimated breaking load.";
@@ -145,7 +146,10 @@
       .map((s, i) => ({ s, i, rank: concern(s) }))
       .filter((x) => x.rank !== null)
       .sort((a, b) => a.rank - b.rank || a.i - b.i);
-    const cards = list.map(({ s }) => {
+    // A wall display cannot scroll: one row of cards, the rest named on one line.
+    const wall = document.documentElement.classList.contains("display-wall");
+    const shown = wall && list.length > WALL_CARDS ? list.slice(0, WALL_CARDS - 1) : list;
+    const cards = shown.map(({ s }) => {
       const figs = [fmtCents(s.cents) + " from target", fmtRate(s.rate_cents_per_hour)];
       if (s.tension_n) figs.push(fmtN(s.tension_n));
       const age = ageOf(s);
@@ -158,8 +162,23 @@
         el("p", { class: "why" }, why(s)),
         el("p", { class: "figs" }, figs.join(" · ")));
     });
+    if (shown.length < list.length) cards.push(moreCard(list.slice(shown.length).map((x) => x.s)));
     $("attention").replaceChildren(...cards);
     $("all-clear").hidden = cards.length > 0 || !state.snap.heard;
+  }
+
+  function moreCard(rest) {
+    const byState = new Map();
+    for (const s of rest) {
+      const k = marginLevel(s) && s.state !== "alarm" ? "margin" : s.state;
+      if (!byState.has(k)) byState.set(k, []);
+      byState.get(k).push(s.id);
+    }
+    const MAX_IDS = 8; // keep the card one row high; the tiles show every string anyway
+    const lines = [...byState].map(([k, ids]) =>
+      el("p", { class: "why" }, k === "margin" ? highTensionBadge("warn") : stateBadge(k),
+        " " + ids.slice(0, MAX_IDS).join(" ") + (ids.length > MAX_IDS ? " and " + (ids.length - MAX_IDS) + " more" : "")));
+    return el("li", { class: "card more" }, el("div", { class: "id" }, "+" + rest.length + " more"), ...lines);
   }
 
   function devBar(cents) {
@@ -263,13 +282,14 @@
     const link = $("link");
     link.classList.toggle("live", state.connected);
     link.classList.toggle("lost", !state.connected && state.lostSince !== null && Date.now() - state.lostSince >= LOST_AFTER_MS);
-    $("link-text").textContent = state.connected ? "connected" : "reconnecting…";
+    $("link-text").textContent = state.connected ? "connected" : state.lostSince === null ? "connecting…" : "reconnecting…";
   }
 
   function render() {
     state.pending = false;
     const snap = state.snap;
     if (!snap) return;
+    $("no-data").hidden = true;
     const strings = snap.strings;
     renderTally(strings);
     renderAttention(strings);
@@ -340,6 +360,12 @@
     });
   }
 
+  // The page carries the state at the time it was served: draw it at once, then follow the stream.
+  const initial = document.getElementById("initial");
+  if (initial && initial.textContent.trim()) {
+    applySnapshot(JSON.parse(initial.textContent));
+    render();
+  }
   connect();
   setInterval(() => { if (state.snap) render(); else renderLink(); }, TICK_MS);
 })();
