@@ -208,7 +208,7 @@ func (m *Monitor) watchTick(w *stallWatch) {
 		*w = stallWatch{last: c, since: m.clock.Now(), gen: w.gen}
 		return
 	}
-	quiet := m.clock.Now().Sub(w.since)
+	quiet := m.clock.Since(w.since)
 	if !w.stalled && quiet >= m.opts.StallAfter {
 		w.stalled = true
 		d := fmt.Sprintf("no audio frames for %s: check the input device or the program feeding stdin",

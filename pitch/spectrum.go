@@ -38,8 +38,8 @@ type spectrum struct {
 }
 
 // spectrumFor prepares a.spec for a tone near fHz: it picks the pyramid level that holds
-// MaxPartials stretched partials, a window of specPeriods periods (at least specMinS and
-// at most specMaxS seconds, at most what was loaded), and computes the power spectrum.
+// MaxPartials stretched partials and the window length of specWant (at most what was
+// loaded), and computes the power spectrum and the band's noise floor.
 func (a *Analyzer) spectrumFor(fHz float64) error {
 	n := a.pyr.n[0]
 	want := min(n, specWant(a.rate, fHz))

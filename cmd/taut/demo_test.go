@@ -144,8 +144,9 @@ func checkDemoFlags(t *testing.T, sumPath string) {
 	var sum struct {
 		Flagged []string `json:"flagged"`
 		Strings []struct {
-			ID    string   `json:"id"`
-			Flags []string `json:"flags"`
+			ID      string            `json:"id"`
+			Flags   []string          `json:"flags"`
+			PullUps []json.RawMessage `json:"pull_ups"`
 		} `json:"strings"`
 	}
 	b, err := os.ReadFile(sumPath)
@@ -158,6 +159,10 @@ func checkDemoFlags(t *testing.T, sumPath string) {
 	for _, s := range sum.Strings {
 		if !slices.Equal(s.Flags, want[s.ID]) {
 			t.Errorf("%s: flags %v, want %v", s.ID, s.Flags, want[s.ID])
+		}
+		// The one pull-up pass is found on exactly the strings that were raised.
+		if raised := slices.Contains(night.PulledUp, s.ID); raised != (len(s.PullUps) == 1) || len(s.PullUps) > 1 {
+			t.Errorf("%s: %d pull-up(s) found; raised in the pull-up pass: %v", s.ID, len(s.PullUps), raised)
 		}
 	}
 	var ids []string

@@ -18,8 +18,9 @@
 //   - A spacing longer than the gap threshold (default max(1 h, 3 × median spacing))
 //     is a gap. Across a gap only a rise is classified.
 //   - A pull-up is a rise above the last reading by more than max(PullUpCents,
-//     JumpSigma·σ_e) (defaults 5 cents, 5σ). Settling only sags, so a rise needs no
-//     trend. It opens a new segment.
+//     JumpSigma·σ_e) (defaults 2.5 cents and 5σ; a restorer retunes strings just past
+//     a 3-cent tolerance, so small pull-ups are real). Settling only sags, so a rise
+//     needs no trend. It opens a new segment.
 //   - A step (a slip at a pin or bearing point) is a drop of more than max(StepCents,
 //     JumpSigma·σ_e) both below the last reading and below the trend: the least-squares
 //     line through the last (up to) four readings of the run, extrapolated. It needs

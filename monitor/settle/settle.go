@@ -36,7 +36,7 @@ const (
 type Options struct {
 	SteadyCentsPerHour float64 // |rate| under this is steady; 0 → 1 (engineering default)
 	ToleranceCents     float64 // a pull-up is suggested when +24 h is flatter than this; 0 → 3
-	PullUpCents        float64 // smallest rise counted as a pull-up; 0 → 5
+	PullUpCents        float64 // smallest rise counted as a pull-up; 0 → 2.5 (a restorer retunes anything past a 3-cent tolerance)
 	StepCents          float64 // smallest sudden drop counted as a step; 0 → 5
 	JumpSigma          float64 // a jump must also exceed this many robust SDs of the innovations; 0 → 5
 	GapHours           float64 // a spacing longer than this is a gap; 0 → max(1 h, 3 × median spacing)
@@ -53,7 +53,7 @@ func (o Options) withDefaults() Options {
 	}
 	def(&o.SteadyCentsPerHour, 1)
 	def(&o.ToleranceCents, 3)
-	def(&o.PullUpCents, 5)
+	def(&o.PullUpCents, 2.5)
 	def(&o.StepCents, 5)
 	def(&o.JumpSigma, 5)
 	def(&o.HorizonHours, 24)
