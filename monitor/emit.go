@@ -37,7 +37,8 @@ func (m *Monitor) journalFailed(cause *Entry, err error) {
 		return
 	}
 	m.jDown = true
-	m.log.Error().Err(err).Msg("journal append failed; entries are held in memory and retried")
+	m.log.Error().Err(err).Msg("journal append failed; entries are held in memory and retried until the disk " +
+		"takes them: check free space on the journal's file system and that it is mounted read-write")
 	f := Entry{Kind: KindFault, Time: cause.Time, MonoS: cause.MonoS, Run: m.runID, Reason: "journal",
 		Detail: "journal write failed, entries held in memory and retried: " + err.Error()}
 	_ = m.journal.Append(&f) // held with the rest; the first error was reported above

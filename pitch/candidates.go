@@ -1,21 +1,22 @@
 package pitch
 
 const (
-	minExplained = 0.9 // a series that leaves more of the spectrum's lines unexplained is checked against alternatives
+	minExplained = 0.9 // a series leaving more line power unexplained is checked against alternatives
 	maxCands     = 8
 )
 
 // bestCandidate is the slow path, taken when YIN found no dip below its threshold or
-// the partial series it led to is missing or leaves strong spectral lines unexplained. It weighs YIN's estimate (whose
-// refinement res and err already hold), YIN's other deep dips, and the strongest peak
-// of the spectrum taken as partial 1, 2 or 3, and returns the start frequency whose
-// partial series holds the largest share of the energy in its analysis window (a share,
-// so that windows of different lengths over a decaying note compare fairly). The octave check inside refine settles the
-// remaining ties between a series and its sub-series.
+// the partial series it led to is missing or leaves strong spectral lines unexplained.
+// It weighs YIN's estimate (whose refinement res and err already hold), YIN's other deep
+// dips, and the strongest line of the spectrum taken as partial 1, 2 or 3, and returns
+// the start frequency whose partial series holds the largest share of the energy in its
+// analysis window (a share, so that windows of different lengths over a decaying note
+// compare fairly). The octave check inside refine settles the remaining ties between a
+// series and its sub-series.
 func (a *Analyzer) bestCandidate(res *result, err error, yinHz, minHz, maxHz float64) float64 {
-	best, bestPower := yinHz, -1.0
+	best, bestShare := yinHz, -1.0
 	if err == nil {
-		bestPower = res.power
+		bestShare = res.share
 	}
 	a.addSpectralCandidates(minHz, maxHz)
 	for i := 0; i < len(a.cands); i++ {
@@ -23,8 +24,8 @@ func (a *Analyzer) bestCandidate(res *result, err error, yinHz, minHz, maxHz flo
 		if a.refine(res, f, minHz, maxHz) != nil {
 			continue
 		}
-		if res.power > bestPower*(1+1e-9) {
-			best, bestPower = f, res.power
+		if res.share > bestShare*(1+1e-9) {
+			best, bestShare = f, res.share
 		}
 	}
 	return best

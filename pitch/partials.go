@@ -29,7 +29,7 @@ type partialEst struct {
 // result is the outcome of the spectral stage.
 type result struct {
 	f0Hz, b, clarity float64
-	power            float64 // share of the windowed signal's energy in the partials
+	share            float64 // share of the windowed signal's energy in the partials
 	explained        float64 // share of the band's significant peak power in the partials
 	used             int
 }
@@ -62,23 +62,28 @@ func (a *Analyzer) refine(res *result, yinHz, minHz, maxHz float64) error {
 			start = next
 			continue
 		}
-		f1 := modelHz(1, f0, b)
-		if f1 < minHz/semitone || f1 > maxHz*semitone {
-			return fmt.Errorf("%w: %.4g Hz is outside the search range %.4g–%.4g Hz", ErrNoPitch, f1, minHz, maxHz)
-		}
-		res.f0Hz, res.b, res.used = f0, b, a.spec.l<<a.spec.level
-		res.clarity = a.clarity(f0)
-		res.explained = a.explained(f0)
-		res.power = 0
-		for _, p := range a.parts {
-			res.power += a.spec.power[p.k]
-		}
-		res.power /= a.spec.full
-		if res.clarity < minClarity {
-			return ErrNoPitch
-		}
-		return nil
+		return a.finish(res, f0, b, minHz, maxHz)
 	}
+}
+
+// finish checks the fitted series against the search range and the clarity floor and
+// fills res.
+func (a *Analyzer) finish(res *result, f0, b, minHz, maxHz float64) error {
+	if f1 := modelHz(1, f0, b); f1 < minHz/semitone || f1 > maxHz*semitone {
+		return fmt.Errorf("%w: %.4g Hz is outside the search range %.4g–%.4g Hz", ErrNoPitch, f1, minHz, maxHz)
+	}
+	res.f0Hz, res.b, res.used = f0, b, a.spec.l<<a.spec.level
+	res.clarity = a.clarity(f0)
+	res.explained = a.explained(f0)
+	res.share = 0
+	for _, p := range a.parts {
+		res.share += a.spec.power[p.k]
+	}
+	res.share /= a.spec.full
+	if res.clarity < minClarity {
+		return ErrNoPitch
+	}
+	return nil
 }
 
 // track searches partials n = 1..MaxPartials near n·f0·sqrt(1+B·n²), starting from
@@ -252,19 +257,21 @@ func (a *Analyzer) octaveCheck(f0, b, minHz, maxHz float64) (float64, bool, erro
 // (fs, bs) stand out: at least two of them and at least a third of those tested, up to
 // the highest partial found.
 func (a *Analyzer) subPartials(fs, bs float64, d int) bool {
-	sp := &a.spec
+	var strongest float64
+	for _, p := range a.parts {
+		strongest = math.Max(strongest, a.spec.power[p.k])
+	}
 	tested, hits := 0, 0
 	for m := 1; m <= d*a.parts[len(a.parts)-1].n+1; m++ {
 		if m%d == 0 {
 			continue
 		}
-		pred := modelHz(m, fs, bs)
-		if pred+searchWidth*fs > float64(sp.kmax)*sp.binHz {
+		_, ok, past := a.detect(m, modelHz(m, fs, bs), searchWidth*fs, fs, strongest)
+		if past {
 			break
 		}
 		tested++
-		k := sp.localMax(pred-searchWidth*fs, pred+searchWidth*fs)
-		if k >= 0 && sp.power[k] >= detectRatio*a.localFloor(k, fs) {
+		if ok {
 			hits++
 		}
 	}

@@ -81,7 +81,7 @@ type Analyzer struct {
 	cfg  Config
 	rate float64
 	pyr  pyramid
-	ffts [32]*fourier.FFT // plans by log2 size, made on first use
+	ffts [3][32]*fourier.FFT // plans by size 2^k, 3·2^k, 5·2^k; made on first use
 
 	fftIn       []float64
 	specA       []complex128
@@ -112,8 +112,8 @@ func New(cfg Config) (*Analyzer, error) {
 	// Upper bounds over every hint: the longest lag is that of MinHz at the full rate,
 	// and the spectral window is at most specMaxS, zero-padded to twice its length.
 	tauMax := int(math.Ceil(cfg.SampleRate/cfg.MinHz)) + 2
-	yinM := nextPow2(2*tauMax + int(math.Ceil(yinMinWinS*cfg.SampleRate)) + 1)
-	specM := nextPow2(specPad * min(cfg.MaxSamples, int(math.Ceil(specMaxS*cfg.SampleRate))))
+	yinM := fftSize(2*tauMax + int(math.Ceil(yinMinWinS*cfg.SampleRate)) + 1)
+	specM := fftSize(specPad * min(cfg.MaxSamples, int(math.Ceil(specMaxS*cfg.SampleRate))))
 	a.fftIn = make([]float64, max(yinM, specM))
 	a.specA = make([]complex128, max(yinM, specM)/2+1)
 	a.specB = make([]complex128, yinM/2+1)
@@ -261,13 +261,32 @@ func levelDB(sumSquares float64, n int) float64 {
 	return 10 * math.Log10(sumSquares/float64(n))
 }
 
-// plan returns the FFT plan for size m (a power of two), making it on first use.
+// plan returns the FFT plan for size m (from fftSize), making it on first use.
 func (a *Analyzer) plan(m int) *fourier.FFT {
-	k := log2(m)
-	if a.ffts[k] == nil {
-		a.ffts[k] = fourier.NewFFT(m)
+	kind, pow := 0, m
+	switch {
+	case m%5 == 0:
+		kind, pow = 2, m/5
+	case m%3 == 0:
+		kind, pow = 1, m/3
 	}
-	return a.ffts[k]
+	k := log2(pow)
+	if a.ffts[kind][k] == nil {
+		a.ffts[kind][k] = fourier.NewFFT(m)
+	}
+	return a.ffts[kind][k]
+}
+
+// fftSize returns the smallest of 2^k, 3·2^k and 5·2^k that is at least n (and at
+// least 16): sizes the FFT does fast, with less zero-padding than powers of two alone.
+func fftSize(n int) int {
+	best := nextPow2(max(n, 16))
+	for _, f := range []int{3, 5} {
+		if m := f * nextPow2((n+f-1)/f); m >= n && m >= 16 && m < best {
+			best = m
+		}
+	}
+	return best
 }
 
 func nextPow2(n int) int {

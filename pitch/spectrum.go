@@ -26,7 +26,7 @@ type spectrum struct {
 	level int
 	rate  float64 // sample rate of the level, Hz
 	l     int     // window length, samples at the level
-	m     int     // FFT size (zero-padded to a power of two)
+	m     int     // FFT size (zero-padded, see fftSize)
 	binHz float64 // rate/m
 	wsum  float64 // sum of the window, for amplitudes
 	r     float64 // the window spans ±r standard deviations
@@ -51,7 +51,7 @@ func (a *Analyzer) spectrumFor(fHz float64) error {
 	}
 	sp := &a.spec
 	sp.level, sp.rate, sp.l = k, levelRate(a.rate, k), len(y)
-	sp.m = max(nextPow2(specPad*sp.l), 16)
+	sp.m = fftSize(specPad * sp.l)
 	sp.binHz = sp.rate / float64(sp.m)
 	sp.r = wideR
 	if float64(sp.l)*fHz/sp.rate < narrowBelow {

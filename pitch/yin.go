@@ -118,7 +118,7 @@ func (a *Analyzer) yinRun(b yinBand) (period, dp float64, below bool, err error)
 		return 0, 0, false, fmt.Errorf("%w: YIN needs %d samples at level %d, got %d", ErrTooShort, 2*b.tauMax+1, b.level, len(y))
 	}
 	a.prefixEnergy(y)
-	m := nextPow2(w + b.tauMax + 1)
+	m := fftSize(w + b.tauMax + 1)
 	best := 0
 	var taus [yinFrames]int
 	var vals [yinFrames]float64

@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"strings"
+	"sync"
 	"sync/atomic"
 	"time"
 
@@ -21,6 +22,15 @@ import (
 
 // listenStdin is what `--input -` reads; tests replace it.
 var listenStdin io.Reader = os.Stdin
+
+// Seams for the fault tests; nil and zero in production.
+var (
+	listenJournalFS  journal.FS     // the journal's file system (journaltest.FS injects faults)
+	listenExtraSinks []monitor.Sink // sinks after the lamps and the status page
+	// journalRetryMin and journalRetryMax bound the backoff of failed journal writes;
+	// zero means the journal's defaults (500 ms doubling to 30 s).
+	journalRetryMin, journalRetryMax time.Duration
+)
 
 // liveStallAfter is how long a live input may deliver nothing before a fault is raised.
 const liveStallAfter = 10 * time.Second
@@ -115,9 +125,10 @@ func cmdListen(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	stopSignals := watchSignals(log, out)
 	defer stopSignals()
 	initHost(log)
-	l := &listener{flags: lf, cfg: cfg, log: log}
+	l := &listener{flags: lf, cfg: cfg, log: log, notify: newNotifier(log), extraSinks: listenExtraSinks}
 	if err := l.run(ctx); err != nil {
 		log.Error().Err(err).Msg("listener stopped with an error")
+		l.notify.failed(err)
 		return err
 	}
 	return nil
@@ -125,13 +136,23 @@ func cmdListen(ctx context.Context, args []string, stdout, stderr io.Writer) err
 
 // listener is one run of the daemon: the parts it opened, closed in reverse order.
 type listener struct {
-	flags   *listenFlags
-	cfg     *instrument.Config
-	log     zerolog.Logger
-	mon     atomic.Pointer[monitor.Monitor]
-	status  atomic.Pointer[status.Server]
-	journal *journal.Writer
-	closers []func()
+	flags      *listenFlags
+	cfg        *instrument.Config
+	log        zerolog.Logger
+	notify     *notifier
+	extraSinks []monitor.Sink
+	// in, when set, is used instead of opening the input the flags name (the soak
+	// test's synthetic night); started, when set, is called with the monitor before it
+	// runs (to feed that night).
+	in      *input
+	started func(*monitor.Monitor)
+
+	mon      atomic.Pointer[monitor.Monitor]
+	status   atomic.Pointer[status.Server]
+	httpAddr string // the status page's configured address; "" = none
+	states   *stringStates
+	journal  *journal.Writer
+	closers  []func()
 }
 
 func (l *listener) run(ctx context.Context) (err error) {
@@ -140,9 +161,11 @@ func (l *listener) run(ctx context.Context) (err error) {
 	if err != nil {
 		return err
 	}
-	in, err := l.openInput()
-	if err != nil {
-		return err
+	in := l.in
+	if in == nil {
+		if in, err = l.openInput(); err != nil {
+			return err
+		}
 	}
 	sinkCtx, stopSinks := context.WithCancel(context.WithoutCancel(ctx))
 	l.closers = append(l.closers, stopSinks)
@@ -150,6 +173,8 @@ func (l *listener) run(ctx context.Context) (err error) {
 	if err != nil {
 		return err
 	}
+	l.states = newStringStates(l.cfg, rec)
+	sinks = append(append(sinks, l.states), l.extraSinks...)
 	exc, err := l.startExciter()
 	if err != nil {
 		return err
@@ -158,6 +183,7 @@ func (l *listener) run(ctx context.Context) (err error) {
 		Config: l.cfg, Source: in.src, Journal: l.journal, Sinks: sinks, Exciter: exc,
 		Logger: l.log.With().Str("component", "monitor").Logger(), Resume: rec.Entries,
 		LiveClock: in.liveClock, StallAfter: in.stallAfter, DropWhenBehind: in.drop,
+		Reopen: in.reopen, ReopenMin: deviceReopenMin, ReopenMax: deviceReopenMax,
 	})
 	if err != nil {
 		return fmt.Errorf("listen: %w", err)
@@ -165,7 +191,27 @@ func (l *listener) run(ctx context.Context) (err error) {
 	l.mon.Store(m)
 	l.log.Info().Str("run", m.RunID()).Str("input", in.name).Str("config", l.cfg.Path).
 		Int("resumed_entries", len(rec.Entries)).Msg("listening")
-	if err := m.Run(ctx); err != nil {
+	if l.started != nil {
+		l.started(m)
+	}
+	return l.runMonitor(ctx, m)
+}
+
+// runMonitor runs the monitor with the systemd notifier beside it. STOPPING=1 goes out
+// as soon as ctx ends (a signal) or, when the input ends first, as Run returns: before
+// the journal is flushed and the lamps halted.
+func (l *listener) runMonitor(ctx context.Context, m *monitor.Monitor) error {
+	if l.notify == nil {
+		l.notify = newNotifier(l.log)
+	}
+	done := make(chan struct{})
+	var wg sync.WaitGroup
+	wg.Go(func() { l.notify.run(ctx, done, l) })
+	err := m.Run(ctx)
+	l.notify.stopping()
+	close(done)
+	wg.Wait()
+	if err != nil {
 		return fmt.Errorf("listen: %w", err)
 	}
 	l.log.Info().Msg("listener stopped")
@@ -187,7 +233,8 @@ func (l *listener) openJournal() (*journal.Recovery, error) {
 		return nil, usagef("listen: no journal directory: set [journal] dir in the config or pass --journal DIR")
 	}
 	w, rec, err := journal.Open(dir, journal.Options{
-		FsyncInterval: l.cfg.Journal.FsyncInterval, SegmentBytes: l.cfg.Journal.SegmentBytes,
+		FsyncInterval: l.cfg.Journal.FsyncInterval, SegmentBytes: l.cfg.Journal.SegmentBytes, FS: listenJournalFS,
+		RetryMin: journalRetryMin, RetryMax: journalRetryMax,
 		OnFsync: func(d time.Duration, err error) {
 			if s := l.status.Load(); s != nil {
 				s.ObserveFsync(d, err)

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"strings"
@@ -11,17 +12,38 @@ import (
 	"taut/monitor"
 )
 
+// audioSource is an opened audio input.
+type audioSource interface {
+	monitor.Source
+	Close() error
+}
+
 // input is the opened audio source and how the monitor should treat it.
 type input struct {
-	src interface {
-		monitor.Source
-		Close() error
-	}
+	src        audioSource
 	name       string
 	liveClock  bool          // entries stamped with the wall clock
 	stallAfter time.Duration // fault when no frames arrive this long; 0 = never
 	drop       bool          // drop audio rather than wait when analysis is behind
+	// reopen opens the input again after it failed or stalled (monitor.Options.Reopen);
+	// nil when it cannot be reopened: files end, and stdin is a pipe whose writer is
+	// gone once it fails, so stdin's EOF ends the run and a stall only raises a fault
+	// (and stops feeding systemd's watchdog, which restarts the whole pipeline).
+	reopen func(ctx context.Context) (monitor.Source, error)
 }
+
+// openAudioDevice opens a live input by name substring; tests replace it with a
+// fake device that can be unplugged.
+var openAudioDevice = func(name string) (audioSource, error) {
+	st, err := paudio.Open(name)
+	if err != nil {
+		return nil, err // not a typed nil in an interface
+	}
+	return st, nil
+}
+
+// The backoff between reopen attempts of a live device (monitor.Options.ReopenMin/Max).
+var deviceReopenMin, deviceReopenMax = time.Second, 30 * time.Second
 
 // openInput opens the audio input named by the flags or, without them, the config.
 func (l *listener) openInput() (*input, error) {
@@ -96,15 +118,26 @@ func (l *listener) openStdin() (*input, error) {
 		liveClock: true, stallAfter: liveStallAfter}, nil
 }
 
+// openDevice opens a live device. A device that fails or stalls later (unplugged, a
+// driver that stops delivering) is reopened by name, which also finds it again after
+// it was plugged back (each open initialises PortAudio afresh).
 func (l *listener) openDevice(name string) (*input, error) {
-	st, err := paudio.Open(name)
+	st, err := openAudioDevice(name)
 	if errors.Is(err, capture.ErrUnavailable) {
 		return nil, fmt.Errorf("listen: no audio device: %w", err)
 	} else if err != nil {
 		return nil, fmt.Errorf("listen: open audio device %q: %w (see `taut inputs` for the devices; "+
 			"or pipe raw PCM on stdin: arecord -t raw -f S16_LE -r 48000 -c 1 | taut listen --input - ...)", name, err)
 	}
-	return &input{src: st, name: "device " + name, liveClock: true, stallAfter: liveStallAfter, drop: true}, nil
+	reopen := func(context.Context) (monitor.Source, error) {
+		src, err := openAudioDevice(name)
+		if err != nil {
+			return nil, fmt.Errorf("open audio device %q: %w", name, err)
+		}
+		return src, nil
+	}
+	return &input{src: st, name: "device " + name, liveClock: true, stallAfter: liveStallAfter, drop: true,
+		reopen: reopen}, nil
 }
 
 func pick(flagValue, configValue int) int {

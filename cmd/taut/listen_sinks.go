@@ -33,6 +33,7 @@ func (l *listener) startSinks(ctx, sinkCtx context.Context) ([]monitor.Sink, err
 	})
 	sinks := []monitor.Sink{board}
 	addr := firstNonEmpty(l.flags.http, l.cfg.HTTP.Listen)
+	l.httpAddr = addr
 	if addr == "" {
 		return sinks, nil
 	}
