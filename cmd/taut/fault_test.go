@@ -134,13 +134,14 @@ func TestListen_journalFaults(t *testing.T) {
 			writes0, syncs0 := fsys.Count(journaltest.OpWrite), fsys.Count(journaltest.OpSync)
 			logLen := len(stderr.String())
 			fsys.Inject(f.fault)
+			defer fsys.Clear()
 			start := time.Now()
 			readingsAfter(3) // capture and analysis go on while the journal fails
 			waitForFunc(t, func() bool {
 				code, body := healthz(t, addr)
 				return code == http.StatusServiceUnavailable && strings.Contains(body, f.cause)
 			})
-			waitForFunc(t, func() bool { return lamp.saw(gpio.High) })
+			waitForFunc(t, func() bool { return lamp.Read() == gpio.High }) // lit for the fault window
 			log := stderr.String()[logLen:]
 			if f.fault.Op == journaltest.OpWrite && (!strings.Contains(log, f.cause) || !strings.Contains(log, "check free space")) {
 				t.Errorf("log does not name the cause %q with what to check:\n%s", f.cause, log)
@@ -155,6 +156,7 @@ func TestListen_journalFaults(t *testing.T) {
 				t.Errorf("%d write and fsync attempts in %v of failure, want at most %d (backoff)", attempts, failedFor, limit)
 			}
 			waitForFunc(t, func() bool { code, _ := healthz(t, addr); return code == http.StatusOK })
+			readingsAfter(1) // appended after the cure: the monitor knows the journal works again
 			t.Logf("%s: failed for %v with %d write/fsync attempts; recovered %v after the cure",
 				f.name, failedFor.Round(time.Millisecond), attempts, time.Since(start.Add(failedFor)).Round(time.Millisecond))
 		})
@@ -169,18 +171,6 @@ func TestListen_journalFaults(t *testing.T) {
 	if len(jf) < 3 {
 		t.Errorf("%d journal fault entries, want one per failing write fault", len(jf))
 	}
-}
-
-// saw reports whether level l was written since the last take.
-func (p *recPin) saw(l gpio.Level) bool {
-	p.mu.Lock()
-	defer p.mu.Unlock()
-	for _, v := range p.levels {
-		if v == l {
-			return true
-		}
-	}
-	return false
 }
 
 // TestListen_journalUnwritableAtStart: a journal directory that cannot be written when
