@@ -66,7 +66,7 @@ func (g *readGate) release() {
 	}
 }
 
-// explain turns the error of a Read that the stall watchdog cancelled into the stall.
+// explainRead turns the error of a Read that the stall watchdog cancelled into the stall.
 func explainRead(ctx, readCtx context.Context, err error) error {
 	if err == nil || ctx.Err() != nil || readCtx.Err() == nil {
 		return err

@@ -6,10 +6,12 @@ import (
 )
 
 const (
-	decayDB    = 35.0 // a note's useful sustain ends this far below its attack peak
-	peakS      = 0.2  // the attack peak is looked for this long after the onset
-	minRateHz  = 1000
-	maxMinHzHz = 20000
+	decayDB     = 35.0  // a note's useful sustain ends this far below its attack peak
+	peakS       = 0.2   // the attack peak is looked for this long after the onset
+	levelBlockS = 0.005 // blocks in which the decay is followed
+	guardS      = 0.005 // a window ends this long before the next onset (its placement error)
+	minRateHz   = 1000
+	maxMinHzHz  = 20000
 )
 
 // Segment is one note found in a recording, as sample indices: the onset, and the
@@ -27,20 +29,23 @@ func Segments(dst []Segment, x []float32, rateHz, minHz float64) []Segment {
 	var d OnsetDetector
 	d.init(rateHz)
 	first := len(dst)
-	for i := 0; i < len(x); i += d.hop {
-		if d.Push(x[i:min(i+d.hop, len(x))]) >= 0 {
+	step := d.hop * d.dec // less than the refractory time: at most one onset per Push
+	for i := 0; i < len(x); i += step {
+		if d.Push(x[i:min(i+step, len(x))]) >= 0 {
 			dst = append(dst, Segment{Onset: int(d.Last())})
 		}
 	}
 	win, skip := WindowLen(rateHz, minHz), AttackSkip(rateHz)
+	guard := int(math.Ceil(guardS * rateHz))
+	block := max(1, int(math.Round(levelBlockS*rateHz)))
 	for j := first; j < len(dst); j++ {
 		s := &dst[j]
 		next := len(x)
 		if j+1 < len(dst) {
-			next = dst[j+1].Onset
+			next = max(s.Onset, dst[j+1].Onset-guard)
 		}
 		s.Start = min(s.Onset+skip, next)
-		s.End = min(s.Start+win, next, decayEnd(x, s.Onset, s.Start, next, d.hop, rateHz))
+		s.End = min(s.Start+win, next, decayEnd(x, s.Onset, s.Start, next, block, rateHz))
 		s.End = max(s.End, s.Start)
 	}
 	return dst

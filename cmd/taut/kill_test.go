@@ -3,19 +3,16 @@ package main
 import (
 	"bufio"
 	"bytes"
-	"context"
 	"flag"
 	"fmt"
 	"io"
 	"math/rand/v2"
 	"os"
 	"os/exec"
-	"os/signal"
 	"path/filepath"
 	"slices"
 	"strconv"
 	"strings"
-	"sync"
 	"syscall"
 	"testing"
 	"time"
@@ -46,104 +43,6 @@ func TestMain(m *testing.M) {
 	os.Exit(m.Run())
 }
 
-// killChild runs `taut <args>` like main does, with the reporters.
-func killChild() int {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	defer stop()
-	out := &lineWriter{w: os.Stdout}
-	listenExtraSinks = []monitor.Sink{appendReporter{out}}
-	listenJournalFS = syncReportFS{out}
-	return exitCode(run(ctx, os.Args[1:], io.Discard, os.Stderr), os.Stderr)
-}
-
-// lineWriter writes each report with one write call, so lines never interleave.
-type lineWriter struct {
-	mu sync.Mutex
-	w  io.Writer
-}
-
-func (l *lineWriter) printf(format string, a ...any) {
-	l.mu.Lock()
-	defer l.mu.Unlock()
-	fmt.Fprintf(l.w, format, a...)
-}
-
-type appendReporter struct{ out *lineWriter }
-
-func (r appendReporter) Publish(e monitor.Entry) {
-	r.out.printf("appended %d %s %s\n", e.Seq, e.Kind, orDash(e.String))
-}
-
-func orDash(s string) string {
-	if s == "" {
-		return "-"
-	}
-	return s
-}
-
-// syncReportFS reports the seq of the last line written to a segment after each of
-// its fsyncs succeeds.
-type syncReportFS struct{ out *lineWriter }
-
-func (fs syncReportFS) OpenFile(path string) (journal.File, error) {
-	f, err := journal.OSFS{}.OpenFile(path)
-	if err != nil {
-		return nil, err
-	}
-	return &syncReportFile{File: f, out: fs.out}, nil
-}
-
-func (fs syncReportFS) SyncDir(dir string) error { return journal.OSFS{}.SyncDir(dir) }
-
-type syncReportFile struct {
-	journal.File
-	out     *lineWriter
-	mu      sync.Mutex
-	lastSeq uint64
-}
-
-func (f *syncReportFile) Write(p []byte) (int, error) {
-	n, err := f.File.Write(p)
-	if err == nil {
-		f.mu.Lock()
-		f.lastSeq = max(f.lastSeq, lastLineSeq(p))
-		f.mu.Unlock()
-	}
-	return n, err
-}
-
-func (f *syncReportFile) Sync() error {
-	f.mu.Lock()
-	seq := f.lastSeq
-	f.mu.Unlock()
-	if err := f.File.Sync(); err != nil {
-		return err
-	}
-	if seq > 0 {
-		f.out.printf("synced %d\n", seq)
-	}
-	return nil
-}
-
-// lastLineSeq reads the seq of the last line in p (lines start with {"seq":N,).
-func lastLineSeq(p []byte) uint64 {
-	p = bytes.TrimRight(p, "\n")
-	if i := bytes.LastIndexByte(p, '\n'); i >= 0 {
-		p = p[i+1:]
-	}
-	const key = `{"seq":`
-	if !bytes.HasPrefix(p, []byte(key)) {
-		return 0
-	}
-	p = p[len(key):]
-	end := bytes.IndexByte(p, ',')
-	if end < 0 {
-		return 0
-	}
-	v, _ := strconv.ParseUint(string(p[:end]), 10, 64)
-	return v
-}
-
 // childReport is what one child said before it died.
 type childReport struct {
 	appended map[uint64]string // seq → "kind string"
@@ -160,8 +59,9 @@ type killLoop struct {
 	rng   *rand.Rand
 	cfg   *instrument.Config
 
-	runs, kills, clean          int
+	runs, kills, clean, early   int // early: killed before its start entry
 	appended, syncedHi, resumed int
+	unsynced                    int // entries appended but not yet fsynced at a kill, found after it
 	maxSeq                      uint64
 }
 
@@ -247,6 +147,10 @@ func (k *killLoop) round(wait time.Duration, sig syscall.Signal) {
 	if sig == syscall.SIGKILL && !rep.exited {
 		k.kills++
 	}
+	if _, err := os.Stat(k.dir); os.IsNotExist(err) && k.maxSeq == 0 {
+		k.early++ // killed before the journal directory was made
+		return
+	}
 	entries, report, err := journal.Load(k.dir)
 	if err != nil {
 		t.Fatalf("run %d: journal.Load: %v", k.runs, err)
@@ -271,7 +175,14 @@ func (k *killLoop) round(wait time.Duration, sig syscall.Signal) {
 	if rep.synced > report.LastSeq {
 		t.Fatalf("run %d: seq %d was fsynced but the journal ends at %d", k.runs, rep.synced, report.LastSeq)
 	}
-	k.checkStart(entries, before, wantResumed)
+	if !k.checkStart(entries, before, wantResumed) {
+		k.early++
+	}
+	for seq := range rep.appended {
+		if seq > rep.synced && !rep.exited {
+			k.unsynced++
+		}
+	}
 	k.appended += len(rep.appended)
 	k.syncedHi = max(k.syncedHi, int(rep.synced))
 	k.maxSeq = report.LastSeq
@@ -281,8 +192,9 @@ func (k *killLoop) round(wait time.Duration, sig syscall.Signal) {
 }
 
 // checkStart finds the start entry of the run just made (the first entry after
-// before) and checks that seq went on from before and that it resumed the strings.
-func (k *killLoop) checkStart(entries []monitor.Entry, before uint64, wantResumed int) {
+// before) and checks that seq went on from before and that it resumed the strings. It
+// returns false when the run wrote nothing (killed before its start entry).
+func (k *killLoop) checkStart(entries []monitor.Entry, before uint64, wantResumed int) bool {
 	t := k.t
 	t.Helper()
 	for _, e := range entries {
@@ -299,9 +211,9 @@ func (k *killLoop) checkStart(entries []monitor.Entry, before uint64, wantResume
 		if wantResumed > 0 {
 			k.resumed++
 		}
-		return
+		return true
 	}
-	// Killed before the start entry was written: nothing new, which is fine.
+	return false // killed before the start entry was written: nothing new, which is fine
 }
 
 // resumableStrings counts the config's strings with a reading in the newest
@@ -351,12 +263,17 @@ func newKillLoop(t *testing.T, seed uint64) *killLoop {
 		rng: rand.New(rand.NewPCG(seed, 1))}
 }
 
-// run kills n children at random times up to maxWait after their start, then lets a
-// last one stop on SIGTERM, and checks the whole journal.
+// run kills n children at random times up to maxWait after their start (every third
+// within the first 15 ms: during start-up, journal recovery or the first notes), then
+// lets a last one stop on SIGTERM, and checks the whole journal.
 func (k *killLoop) run(n int, maxWait time.Duration) {
 	t := k.t
-	for range n {
-		k.round(time.Duration(k.rng.Int64N(int64(maxWait))), syscall.SIGKILL)
+	for i := range n {
+		upTo := maxWait
+		if i%3 == 0 {
+			upTo = 15 * time.Millisecond
+		}
+		k.round(time.Duration(k.rng.Int64N(int64(upTo))), syscall.SIGKILL)
 	}
 	k.round(maxWait, syscall.SIGTERM)
 	entries, report, err := journal.Load(k.dir)
@@ -372,9 +289,10 @@ func (k *killLoop) run(n int, maxWait time.Duration) {
 			readings++
 		}
 	}
-	t.Logf("%d runs: %d killed by SIGKILL, %d stopped cleanly; %d starts resumed strings; %d entries (%d readings), "+
-		"seq 1..%d without gap or duplicate; %d entries reported appended, all present; highest fsynced seq reported %d",
-		k.runs, k.kills, k.clean, k.resumed, len(entries), readings, k.maxSeq, k.appended, k.syncedHi)
+	t.Logf("%d runs: %d killed by SIGKILL (%d before writing their start entry), %d stopped cleanly; %d starts "+
+		"resumed strings; %d entries (%d readings), seq 1..%d without gap or duplicate; %d entries reported appended, "+
+		"all present (%d of them not yet fsynced when killed); highest fsynced seq reported %d",
+		k.runs, k.kills, k.early, k.clean, k.resumed, len(entries), readings, k.maxSeq, k.appended, k.unsynced, k.syncedHi)
 }
 
 // TestKillLoop kills `taut listen` with SIGKILL at random points six times, restarting

@@ -105,7 +105,7 @@ func (lf *listenFlags) check(rest []string) error {
 // The first SIGINT/SIGTERM stops capture, analyses what was captured, flushes and
 // fsyncs the journal and leaves lamps and exciter idle, then exits 0; main restores
 // the default signal action once ctx is cancelled, so a second signal ends the
-// process at once.
+// process at once. Under systemd (Type=notify) it speaks sd_notify: see notifier.
 func cmdListen(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	lf, err := parseListenFlags(args, stderr)
 	if errors.Is(err, flag.ErrHelp) {

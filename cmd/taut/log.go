@@ -77,7 +77,7 @@ func newLogger(stderr io.Writer, lf logFlags) (zerolog.Logger, *logOutput, error
 	if err != nil || lf.level == "" {
 		return zerolog.Nop(), nil, usagef("--log.level %q: want trace, debug, info, warn or error", lf.level)
 	}
-	zerolog.TimeFieldFormat = time.RFC3339Nano
+	setTimeFormat.Do(func() { zerolog.TimeFieldFormat = time.RFC3339Nano })
 	out := &logOutput{w: stderr}
 	var w io.Writer = out
 	if lf.file != "" {
@@ -94,6 +94,10 @@ func newLogger(stderr io.Writer, lf logFlags) (zerolog.Logger, *logOutput, error
 	stdlog.SetOutput(log.With().Str("component", "stdlog").Logger())
 	return log, out, nil
 }
+
+// setTimeFormat sets zerolog's process-wide time format once: a second write would
+// race with the goroutines (the status page's) of a logger built before.
+var setTimeFormat sync.Once
 
 func isTerminal(w io.Writer) bool {
 	f, ok := w.(*os.File)
