@@ -76,3 +76,29 @@ func TestOnsetDiag(t *testing.T) {
 		}
 	}
 }
+
+func TestOnsetTrace(t *testing.T) {
+	if testing.Short() {
+		t.Skip()
+	}
+	for _, seed := range []uint64{6, 8, 9} {
+		x, at := overlapPair(harpTone("C7", seed, true), harpTone("C7", seed+100, true), -3)
+		var d OnsetDetector
+		d.init(rate)
+		step := d.hop * d.dec
+		for i := 0; i+step <= len(x); i += step {
+			med := d.median()
+			d.Push(x[i : i+step])
+			fl := d.flux[(d.frames-1)%onsetMedianLen]
+			if i > at-3*step && i < at+8*step {
+				j, ok := int64(-1), false
+				if fl >= d.fluxMin+onsetFluxRel*med {
+					d2 := d
+					d2.pending = false
+					j, ok = d2.locate()
+				}
+				t.Logf("seed %d t=%.4f flux %.1f thr %.1f locate %d %v last %d", seed, float64(i+step)/rate, fl, d.fluxMin+onsetFluxRel*med, j, ok, d.last)
+			}
+		}
+	}
+}

@@ -51,7 +51,11 @@ func main() {
 }
 
 func run(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	if len(args) == 0 || args[0] == "-h" || args[0] == "--help" || args[0] == "help" {
+	if len(args) == 0 {
+		printUsage(stderr)
+		return usagef("no command given")
+	}
+	if args[0] == "-h" || args[0] == "--help" || args[0] == "help" {
 		printUsage(stdout)
 		return nil
 	}
