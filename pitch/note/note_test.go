@@ -52,6 +52,8 @@ func TestCents(t *testing.T) {
 }
 
 func TestParse(t *testing.T) {
+	// MIDI 1.0 note numbering (A4 = 69, middle C = C4 = 60), from memory; the
+	// spellings follow scientific pitch notation.
 	tests := []struct {
 		in   string
 		want int
