@@ -144,6 +144,7 @@ func New(opts Options) (*Monitor, error) {
 	if m.clock == nil {
 		m.clock = clockwork.NewRealClock()
 	}
+	m.stats.base = m.clock.Now()
 	if m.opts.StartTime.IsZero() {
 		m.opts.StartTime = m.clock.Now()
 	}

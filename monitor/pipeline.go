@@ -77,9 +77,8 @@ func (m *Monitor) capture(ctx context.Context, free, full chan *block) error {
 		m.captured.Add(frames + gap)
 		if frames > 0 {
 			m.stats.framesRead.Add(frames)
-			now := m.clock.Now()
-			m.reopener.lastFrame = now
-			m.stats.lastFrameNs.Store(now.UnixNano())
+			m.reopener.lastFrame = m.clock.Now()
+			m.stats.frameAt(m.clock.Since(m.stats.base))
 		}
 		switch {
 		case b == nil && frames > 0:

@@ -11,15 +11,19 @@ const (
 	onsetDecRateHz  = 11000  // the input is averaged down to the lowest rate ≥ this (×1 below)
 	onsetFrameS     = 0.0427 // spectral frame, seconds (2048 samples at 48 kHz) …
 	onsetMinFrame   = 64     // … rounded to a power of two, at least this many samples
-	onsetHops       = 4      // hops per frame
-	onsetSubs       = 8      // sub-blocks per hop: the time grid of the onset's position
-	onsetLag        = 2      // the flux compares a frame with the one this many hops before
+	onsetHops       = 2      // hops per frame
+	onsetSubs       = 32     // sub-blocks per frame: the time grid of the onset's position
+	onsetLag        = 1      // the flux compares a frame with the loudest of those onsetLag …
+	onsetMemory     = 5      // … to onsetMemory hops before (107 ms at 48 kHz), bin by bin
 	onsetFloorDB    = -90.0  // bin level (dB re a full-scale sine) below which nothing counts
 	onsetMedianLen  = 32     // frames of flux history behind the adaptive threshold
 	onsetFluxMin    = 60.0   // flux (dB summed over bins) that always counts as a rise …
 	onsetFluxRel    = 2.0    // … above this multiple of the recent median flux
-	onsetRiseMin    = 1.6    // the level must jump by this power ratio (2 dB) at the onset …
-	onsetBeforeS    = 0.02   // … over the loudest sub-block of this long before
+	onsetRiseMin    = 1.5    // the mean power after the onset over that before it, at least (1.8 dB) …
+	onsetBeforeS    = 0.04   // … over this long before (a period at 25 Hz, so a low note's …
+	onsetAfterS     = 0.04   // … own waveform is no rise) and this long after
+	onsetSharp      = 1      // the onset is placed where the level over this many sub-blocks …
+	onsetPlaceS     = 0.013  // … within this time of the largest rise first jumps steeply
 	onsetLevelMin   = 1e-6   // mean square at the onset below which nothing starts (−60 dBFS)
 	onsetHPHz       = 80.0   // corner of the high-pass that removes offsets from the level
 	onsetSustainS0  = 0.008  // the sound must go on: its level from this long after the onset …
@@ -27,7 +31,9 @@ const (
 	onsetSustainDB  = 16.0   // … within this many dB of the onset's peak (a click or step is not)
 	onsetRefractory = 0.1    // no second onset within this time, seconds
 	attackSkipS     = 0.05   // attack transient skipped before analysis, seconds
-	subRing         = 128    // sub-blocks of level history kept
+	subRing         = 256    // sub-blocks of level history kept
+	ringLen         = 2 * maxFrame
+	ringMask        = ringLen - 1
 )
 
 // OnsetDetector finds note onsets in a stream of samples: a note starts where the
@@ -41,7 +47,9 @@ type OnsetDetector struct {
 	norm        float64 // scales bin power so that a full-scale sine's peak is 1
 	floor       float64 // onsetFloorDB as a power
 	hpA         float64 // one-pole high-pass coefficient
-	before      int     // sub-blocks in the level reference before an onset
+	before      int     // sub-blocks in the level before an onset …
+	after       int     // … and after it
+	placeSubs   int     // onsetPlaceS in sub-blocks
 	sus0, sus1  int     // sustain check, sub-blocks after the onset
 	refractory  int     // sub-blocks
 	win         [maxFrame]float64
@@ -56,7 +64,7 @@ type OnsetDetector struct {
 
 	// Analysed samples and their level per sub-block.
 	nDec          int64
-	ring          [maxFrame]float64 // the last n analysed samples
+	ring          [ringLen]float64 // the latest analysed samples
 	prevY, hpY    float64
 	eHP, eDiff    float64 // sums of squares in the current sub-block: high-passed signal, difference
 	subs          int64   // completed sub-blocks
@@ -65,18 +73,18 @@ type OnsetDetector struct {
 	// Spectra and flux.
 	frame  [maxFrame]float64
 	power  [maxHalf + 1]float64
-	logs   [onsetLag + 1][maxHalf + 1]float64 // log2 power of the latest frames
+	logs   [onsetMemory + 1][maxHalf + 1]float64 // log2 power of the latest frames
+	ref    [maxHalf + 1]float64                  // the loudest of the earlier ones
 	frames int64
 	flux   [onsetMedianLen]float64
 	sorted [onsetMedianLen]float64
 
 	// Decisions.
-	pending bool  // a located onset waits for its sustain check
-	pendSub int64 // its sub-block
-	pendAt  int64 // its input sample
-	last    int64 // input sample of the latest onset, or -1
-	lastSub int64 // its sub-block
-	found   bool  // an onset was confirmed since the flag was cleared
+	pending        bool  // a frame's flux stood out; its span waits for the decision
+	spanLo, spanHi int64 // sub-blocks of that frame
+	last           int64 // input sample of the latest onset, or -1
+	lastSub        int64 // its sub-block
+	found          bool  // an onset was confirmed since the flag was cleared
 }
 
 // NewOnsetDetector returns a detector for samples at rateHz. It panics if rateHz is not
@@ -95,9 +103,11 @@ func (d *OnsetDetector) init(rateHz float64) {
 	rate := rateHz / float64(d.dec)
 	d.n = max(onsetMinFrame, min(maxFrame, nearestPow2(onsetFrameS*rate)))
 	d.hop = d.n / onsetHops
-	d.sub = d.hop / onsetSubs
+	d.sub = d.n / onsetSubs
 	subS := float64(d.sub) / rate
-	d.before = max(1, int(math.Ceil(onsetBeforeS/subS)))
+	d.before = max(1, int(math.Round(onsetBeforeS/subS)))
+	d.after = max(1, int(math.Round(onsetAfterS/subS)))
+	d.placeSubs = max(1, int(math.Round(onsetPlaceS/subS)))
 	d.sus0 = max(1, int(math.Round(onsetSustainS0/subS)))
 	d.sus1 = max(d.sus0+1, int(math.Round(onsetSustainS1/subS)))
 	d.refractory = int(math.Ceil(onsetRefractory / subS))
@@ -132,19 +142,25 @@ func (d *OnsetDetector) Push(block []float32) int {
 	first := -1
 	start := d.pos
 	d.pos += int64(len(block))
-	for _, v := range block {
-		f := float64(v)
-		if f-f != 0 { // NaN or Inf: hold the previous sample rather than poison the sums
-			f = d.held
+	for len(block) > 0 {
+		n := min(len(block), d.dec-d.accN)
+		acc, held := d.acc, d.held
+		for _, v := range block[:n] {
+			f := float64(v)
+			if f-f != 0 { // NaN or Inf: hold the previous sample rather than poison the sums
+				f = held
+			}
+			held = f
+			acc += f
 		}
-		d.held = f
-		d.acc += f
-		d.accN++
+		block = block[n:]
+		d.held, d.accN = held, d.accN+n
 		if d.accN < d.dec {
-			continue
+			d.acc = acc
+			break
 		}
-		d.sample(d.acc / float64(d.dec))
 		d.acc, d.accN = 0, 0
+		d.sample(acc / float64(d.dec))
 		if d.found {
 			d.found = false
 			if first < 0 {
@@ -161,7 +177,7 @@ func (d *OnsetDetector) Last() int64 { return d.last }
 
 // sample takes the next analysed sample.
 func (d *OnsetDetector) sample(y float64) {
-	d.ring[d.nDec&int64(d.n-1)] = y
+	d.ring[d.nDec&ringMask] = y
 	diff := y - d.prevY
 	d.hpY = d.hpA * (d.hpY + diff)
 	d.prevY = y
@@ -179,150 +195,6 @@ func (d *OnsetDetector) sample(y float64) {
 		d.spectralFrame()
 	}
 	if d.pending {
-		d.confirm()
+		d.decide()
 	}
-}
-
-// spectralFrame takes the spectrum of the last n analysed samples and, when its flux
-// stands out, looks for the onset that caused it.
-func (d *OnsetDetector) spectralFrame() {
-	m := d.n / 2
-	start := d.nDec // the oldest sample sits where the next one goes
-	for i := 0; i < d.n; i++ {
-		d.frame[i] = d.win[i] * d.ring[(start+int64(i))&int64(d.n-1)]
-	}
-	d.fft.power(d.power[:m+1], d.frame[:d.n])
-	cur := &d.logs[d.frames%(onsetLag+1)]
-	ref := &d.logs[(d.frames+1)%(onsetLag+1)] // onsetLag frames back
-	for k := 0; k <= m; k++ {
-		cur[k] = fastLog2(d.power[k]*d.norm + d.floor)
-	}
-	// Half-wave rectified flux against the loudest neighbouring bin of the earlier
-	// frame, so that a partial gliding by a bin (beats, vibrato) is no rise.
-	var flux float64
-	for k := 1; k < m; k++ {
-		r := max(ref[k-1], ref[k], ref[k+1])
-		if c := cur[k]; c > r {
-			flux += c - r
-		}
-	}
-	thr := d.fluxMin + onsetFluxRel*d.median()
-	d.flux[d.frames%onsetMedianLen] = flux
-	d.frames++
-	if flux < thr || d.pending {
-		return
-	}
-	if j, ok := d.locate(); ok {
-		d.pending, d.pendSub, d.pendAt = true, j, d.onsetSample(j)
-	}
-}
-
-// median returns the median flux of the recent frames (zero before there are any).
-func (d *OnsetDetector) median() float64 {
-	n := int(min(d.frames, onsetMedianLen))
-	s := d.sorted[:n]
-	copy(s, d.flux[:n])
-	for i := 1; i < n; i++ { // insertion sort: 32 values
-		for j := i; j > 0 && s[j] < s[j-1]; j-- {
-			s[j], s[j-1] = s[j-1], s[j]
-		}
-	}
-	if n == 0 {
-		return 0
-	}
-	return s[n/2]
-}
-
-// locate returns the sub-block, within the latest frame and past the refractory time,
-// where the level jumps the most over the loudest sub-block of the preceding
-// onsetBeforeS, in the high-passed signal or in its first difference (which stresses
-// the broadband noise of a strike or pluck). It fails when no jump is large enough.
-func (d *OnsetDetector) locate() (int64, bool) {
-	hi := d.subs
-	lo := max(0, hi-int64(d.n/d.sub), d.lastSub+int64(d.refractory), hi-subRing+int64(d.before+d.sus1+1))
-	best, bestJ := 0.0, int64(-1)
-	for j := lo; j < hi; j++ {
-		var refHP, refDif float64
-		for i := max(0, j-int64(d.before)); i < j; i++ {
-			refHP = max(refHP, d.subHP[i%subRing])
-			refDif = max(refDif, d.subDif[i%subRing])
-		}
-		eHP, eDif := d.subHP[j%subRing], d.subDif[j%subRing]
-		if eHP < onsetLevelMin {
-			continue
-		}
-		r := max(ratio(eHP, refHP), ratio(eDif, refDif))
-		if r > best {
-			best, bestJ = r, j
-		}
-	}
-	return bestJ, best >= onsetRiseMin
-}
-
-func ratio(e, ref float64) float64 {
-	if ref <= 0 {
-		if e > 0 {
-			return math.Inf(1)
-		}
-		return 0
-	}
-	return e / ref
-}
-
-// onsetSample returns the input sample where the onset in sub-block j begins: the first
-// analysed sample whose step from its predecessor reaches a third of the sub-block's
-// largest step.
-func (d *OnsetDetector) onsetSample(j int64) int64 {
-	first := j * int64(d.sub)
-	var prev, peak float64
-	if first > 0 {
-		prev = d.ring[(first-1)&int64(d.n-1)]
-	}
-	p := prev
-	for i := first; i < first+int64(d.sub); i++ {
-		y := d.ring[i&int64(d.n-1)]
-		peak = max(peak, math.Abs(y-p))
-		p = y
-	}
-	p = prev
-	at := first
-	for i := first; i < first+int64(d.sub); i++ {
-		y := d.ring[i&int64(d.n-1)]
-		if math.Abs(y-p) >= peak/3 {
-			at = i
-			break
-		}
-		p = y
-	}
-	return at * int64(d.dec)
-}
-
-// confirm decides a pending onset once its sustain window has passed: the level from
-// onsetSustainS0 to onsetSustainS1 after the onset must stay within onsetSustainDB of
-// the loudest sub-block before it. A click, a knock without resonance or a step of
-// the offset dies faster and is no note.
-func (d *OnsetDetector) confirm() {
-	j := d.pendSub
-	if d.subs < j+int64(d.sus1) {
-		return
-	}
-	d.pending = false
-	var peak, sus float64
-	for i := j; i < j+int64(d.sus0); i++ {
-		peak = max(peak, d.subHP[i%subRing])
-	}
-	for i := j + int64(d.sus0); i < j+int64(d.sus1); i++ {
-		sus += d.subHP[i%subRing]
-	}
-	sus /= float64(d.sus1 - d.sus0)
-	if sus < peak*math.Pow(10, -onsetSustainDB/10) {
-		return
-	}
-	d.last, d.lastSub, d.found = d.pendAt, j, true
-}
-
-// AttackSkip returns the number of samples (50 ms) to skip after an onset before the
-// analysis window starts, so that the hammer or pluck transient is not analysed.
-func AttackSkip(rateHz float64) int {
-	return int(math.Round(attackSkipS * rateHz))
 }

@@ -70,17 +70,31 @@ func splitPower(er, ei, or, oi, c, s float64) float64 {
 	return xr*xr + xi*xi
 }
 
-// complexFFT transforms re + i·im (in bit-reversed order) in place, forward sign.
+// complexFFT transforms re + i·im (in bit-reversed order, m ≥ 4) in place, forward
+// sign: the first two stages at once without multiplications, then radix 2.
 func (f *realFFT) complexFFT(re, im []float64) {
 	m := len(re)
-	for size := 2; size <= m; size <<= 1 {
+	for s := 0; s+3 < m; s += 4 {
+		r, q := re[s:s+4:s+4], im[s:s+4:s+4]
+		r0, i0 := r[0]+r[1], q[0]+q[1]
+		r1, i1 := r[0]-r[1], q[0]-q[1]
+		r2, i2 := r[2]+r[3], q[2]+q[3]
+		r3, i3 := r[2]-r[3], q[2]-q[3] // times −i below
+		r[0], q[0] = r0+r2, i0+i2
+		r[2], q[2] = r0-r2, i0-i2
+		r[1], q[1] = r1+i3, i1-r3
+		r[3], q[3] = r1-i3, i1+r3
+	}
+	cos, sin := f.cos[:m], f.sin[:m]
+	for size := 8; size <= m; size <<= 1 {
 		half := size >> 1
 		step := 2 * (m / size) // twiddle e^{−2πij/size} = table entry j·n/size = j·step
 		for start := 0; start < m; start += size {
 			a, b := re[start:start+half], re[start+half:start+size]
 			ai, bi := im[start:start+half], im[start+half:start+size]
+			b, ai, bi = b[:len(a)], ai[:len(a)], bi[:len(a)]
 			for j := range a {
-				c, s := f.cos[j*step], f.sin[j*step]
+				c, s := cos[j*step], sin[j*step]
 				tr := b[j]*c + bi[j]*s
 				ti := bi[j]*c - b[j]*s
 				b[j], bi[j] = a[j]-tr, ai[j]-ti

@@ -15,7 +15,8 @@ var (
 	ErrTooShort = errors.New("pitch: too short")
 	// ErrSilence: the RMS level is below Config.SilenceDB.
 	ErrSilence = errors.New("pitch: silence")
-	// ErrClipped: a large share of the samples sit at full scale.
+	// ErrClipped: a large share of the samples lie on flat tops at full scale (see the
+	// package doc).
 	ErrClipped = errors.New("pitch: clipped")
 	// ErrNoPitch: no partial series stands out of the noise.
 	ErrNoPitch = errors.New("pitch: no pitch")
@@ -62,9 +63,7 @@ const (
 	defaultMaxSamples  = 1 << 16
 	defaultSilenceDB   = -75.0
 
-	clipLevel = 0.999 // |sample| at or above this counts as full scale
-	clipShare = 0.01  // ErrClipped when this share of samples is at full scale
-	maxSample = 1000  // larger magnitudes are not audio (ErrBadSample)
+	maxSample = 1000 // larger magnitudes are not audio (ErrBadSample)
 
 	specPeriods     = 12   // periods of the pitch in the spectral window, at least
 	specLongPeriods = 48   // periods wanted for precision …
@@ -99,6 +98,7 @@ type Analyzer struct {
 	cands       []float64    // alternative YIN estimates (Hz) when no dip is below the threshold
 	spec        spectrum
 	levelSum    float64 // sum of squares of the loaded samples
+	clipLong    int     // flat runs longer than this are clipping however they start
 }
 
 // New returns an Analyzer for cfg, with zero fields replaced by their defaults.
@@ -107,7 +107,7 @@ func New(cfg Config) (*Analyzer, error) {
 	if err := checkConfig(cfg); err != nil {
 		return nil, err
 	}
-	a := &Analyzer{cfg: cfg, rate: cfg.SampleRate}
+	a := &Analyzer{cfg: cfg, rate: cfg.SampleRate, clipLong: clipLongRun(cfg.SampleRate, cfg.MinHz)}
 	a.pyr.init(cfg.MaxSamples)
 	// Upper bounds over every hint: the longest lag is that of MinHz at the full rate,
 	// and the spectral window is at most specMaxS, zero-padded to twice its length.

@@ -62,7 +62,7 @@ func cmdDemo(ctx context.Context, args []string, stdout, stderr io.Writer) error
 		return fmt.Errorf("demo: %w", err)
 	}
 	fmt.Fprintf(stdout, "journal %s: %s\n", jdir, rep)
-	if err := writeReport(stdout, entries, rep, night.Config, jdir, df.out); err != nil {
+	if err := writeReport(stdout, stderr, entries, rep, night.Config, jdir, df.out); err != nil {
 		return err
 	}
 	return res.serveUntilDone(ctx, stdout)

@@ -54,10 +54,26 @@ func printPlan(w io.Writer, n *sim.Night, configName string, seed uint64) {
 	}
 }
 
+// noPitchText accounts for the onsets that gave no pitch. Every strike that gave no
+// note is one of them; the rest are extra onsets the detector found besides the
+// strikes (where a tone stops), which the monitor ignores.
+func noPitchText(strikes, notes, noPitch int64) string {
+	missed := max(strikes-notes, 0)
+	extra := max(noPitch-missed, 0)
+	var out string
+	if missed > 0 {
+		out += fmt.Sprintf("; %d strike(s) gave no pitch", missed)
+	}
+	if extra > 0 {
+		out += fmt.Sprintf("; %d extra onset(s) without a pitch (where a tone stops), ignored", extra)
+	}
+	return out
+}
+
 func printRun(w io.Writer, n *sim.Night, r *nightResult) {
 	s := r.stats
-	fmt.Fprintf(w, "pipeline: %d strikes → %d notes → %d readings (%d unmatched, %d without a pitch)\n",
-		n.Strikes(), s.Notes, s.Readings, s.Unmatched, s.NoPitch)
+	fmt.Fprintf(w, "pipeline: %d strikes → %d notes → %d readings (%d unmatched)%s\n",
+		n.Strikes(), s.Notes, s.Readings, s.Unmatched, noPitchText(int64(n.Strikes()), s.Notes, s.NoPitch))
 	speed := ""
 	if r.cpu > 0 {
 		speed = fmt.Sprintf(", %.0f audio-seconds per CPU-second", r.audioS/r.cpu.Seconds())

@@ -318,3 +318,23 @@ func BenchmarkDemoNight(b *testing.B) {
 		b.ReportMetric(audioS/cpuS, "audio-s/cpu-s")
 	}
 }
+
+func TestNoPitchText(t *testing.T) {
+	cases := []struct {
+		name                    string
+		strikes, notes, noPitch int64
+		want                    string
+	}{
+		{"None", 684, 684, 0, ""},
+		{"ExtraOnsets", 684, 684, 17, "; 17 extra onset(s) without a pitch (where a tone stops), ignored"},
+		{"MissedStrikes", 684, 680, 4, "; 4 strike(s) gave no pitch"},
+		{"Both", 684, 680, 10, "; 4 strike(s) gave no pitch; 6 extra onset(s) without a pitch (where a tone stops), ignored"},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			if got := noPitchText(tc.strikes, tc.notes, tc.noPitch); got != tc.want {
+				t.Errorf("got %q, want %q", got, tc.want)
+			}
+		})
+	}
+}

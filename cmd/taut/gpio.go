@@ -21,19 +21,38 @@ const gpioHelp = "check the pin name as periph knows it (e.g. GPIO17), that the 
 	"can open /dev/gpiochip* (member of the gpio group; udev rule SUBSYSTEM==\"gpio\", GROUP=\"gpio\", MODE=\"0660\"), " +
 	"and that this board has the pin"
 
-// setupLamps builds the lamp board from the config. host.Init must have run. Pins are
-// looked up by name; when the machine has no GPIO, or off is set (--lamps=off), every
-// lamp is logged instead of driven, with one warning. With lamps.required a missing
-// pin is an error naming every missing lamp and pin; without it, the missing lamps
-// are logged instead (one warning) and the others are driven.
+// pinLookup finds GPIO pins. setupLamps and setupExciter use periph's process-wide
+// registry (hostPins); tests pass their own so that they depend neither on pins other
+// tests registered nor on the order tests run in.
+type pinLookup struct {
+	byName func(name string) gpio.PinIO // nil for a pin that does not exist
+	all    func() []gpio.PinIO          // every pin; none = no usable GPIO on this machine
+}
+
+// hostPins looks pins up in periph's registry; host.Init must have run.
+func hostPins() pinLookup {
+	return pinLookup{byName: gpioreg.ByName, all: gpioreg.All}
+}
+
+// setupLamps builds the lamp board from the config with periph's pins. host.Init must
+// have run. See setupLampsWith.
 func setupLamps(cfg instrument.Lamps, off bool, log zerolog.Logger) (*lamp.Board, error) {
-	noGPIO := len(gpioreg.All()) == 0
+	return setupLampsWith(hostPins(), cfg, off, log)
+}
+
+// setupLampsWith builds the lamp board from the config. Pins are looked up by name;
+// when the machine has no GPIO, or off is set (--lamps=off), every lamp is logged
+// instead of driven, with one warning. With lamps.required a missing pin is an error
+// naming every missing lamp and pin; without it, the missing lamps are logged instead
+// (one warning) and the others are driven.
+func setupLampsWith(pins pinLookup, cfg instrument.Lamps, off bool, log zerolog.Logger) (*lamp.Board, error) {
+	noGPIO := len(pins.all()) == 0
 	var lamps []lamp.Lamp
 	var missing []string
 	for _, lc := range cfg.Lamp {
 		var pin gpio.PinOut
 		if !off {
-			if p := gpioreg.ByName(lc.Pin); p != nil { // ByName returns nil for a missing pin
+			if p := pins.byName(lc.Pin); p != nil {
 				pin = p
 			} else {
 				missing = append(missing, fmt.Sprintf("lamp %q on pin %q", lc.Name, lc.Pin))
@@ -129,9 +148,15 @@ func (p *logPin) Out(l gpio.Level) error {
 	return nil
 }
 
-// setupExciter builds the exciter driver when the config enables it (nil, nil
-// otherwise). host.Init must have run. Every string's exciter pin must exist.
+// setupExciter builds the exciter driver with periph's pins. host.Init must have run.
+// See setupExciterWith.
 func setupExciter(cfg *instrument.Config, log zerolog.Logger) (*exciter.Driver, error) {
+	return setupExciterWith(hostPins(), cfg, log)
+}
+
+// setupExciterWith builds the exciter driver when the config enables it (nil, nil
+// otherwise). Every string's exciter pin must exist.
+func setupExciterWith(lookup pinLookup, cfg *instrument.Config, log zerolog.Logger) (*exciter.Driver, error) {
 	ec := cfg.Exciter
 	if !ec.Enabled {
 		return nil, nil
@@ -142,7 +167,7 @@ func setupExciter(cfg *instrument.Config, log zerolog.Logger) (*exciter.Driver, 
 		if s.ExciterPin == "" {
 			continue
 		}
-		p := gpioreg.ByName(s.ExciterPin)
+		p := lookup.byName(s.ExciterPin)
 		if p == nil {
 			missing = append(missing, fmt.Sprintf("string %s on pin %q", s.ID, s.ExciterPin))
 			continue

@@ -15,20 +15,25 @@ import (
 	"taut/monitor/instrument"
 )
 
-// registerPins adds fake pins to periph's registry for one test. The registry is
-// global: these tests must not run in parallel.
-func registerPins(t *testing.T, names ...string) map[string]*gpiotest.Pin {
-	t.Helper()
+// fakePins returns a pin lookup holding only the named fake pins, so that a test sees
+// neither the pins other tests put in periph's process-wide registry nor real ones.
+func fakePins(names ...string) (pinLookup, map[string]*gpiotest.Pin) {
 	pins := map[string]*gpiotest.Pin{}
+	var all []gpio.PinIO
 	for i, n := range names {
 		p := &gpiotest.Pin{N: n, Num: 100 + i}
-		if err := gpioreg.Register(p); err != nil {
-			t.Fatal(err)
-		}
-		t.Cleanup(func() { _ = gpioreg.Unregister(n) })
 		pins[n] = p
+		all = append(all, p)
 	}
-	return pins
+	return pinLookup{
+		byName: func(name string) gpio.PinIO {
+			if p, ok := pins[name]; ok {
+				return p
+			}
+			return nil // as gpioreg.ByName: nil for a missing pin, never a typed nil
+		},
+		all: func() []gpio.PinIO { return all },
+	}, pins
 }
 
 func testLamps(required bool) instrument.Lamps {
@@ -72,9 +77,9 @@ func TestSetupLamps(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			pins := registerPins(t, tt.pins...)
+			lookup, pins := fakePins(tt.pins...)
 			var buf lockedBuffer // the board's goroutine logs while the test reads
-			board, err := setupLamps(testLamps(tt.required), tt.off, zerolog.New(&buf))
+			board, err := setupLampsWith(lookup, testLamps(tt.required), tt.off, zerolog.New(&buf))
 			if tt.wantErr != nil {
 				if err == nil {
 					t.Fatal("no error")
@@ -123,6 +128,52 @@ func TestSetupLamps(t *testing.T) {
 	}
 }
 
+// TestSetupLamps_isolatedFromRegistry: pins other tests put in periph's process-wide
+// registry must not turn "no GPIO" into "pin missing" (the case failed only in the full
+// package run, depending on test order).
+func TestSetupLamps_isolatedFromRegistry(t *testing.T) {
+	registerGlobalPin(t, "TAUT_T_GLOBAL_OTHER")
+	lookup, _ := fakePins()
+	var buf lockedBuffer
+	if _, err := setupLampsWith(lookup, testLamps(false), false, zerolog.New(&buf)); err != nil {
+		t.Fatal(err)
+	}
+	if w := warnings(buf.String()); len(w) != 1 || !strings.Contains(w[0], "no GPIO on this machine") {
+		t.Errorf("warnings %q; want the one no-GPIO warning", w)
+	}
+}
+
+// TestSetupLamps_hostRegistry: setupLamps itself looks pins up in periph's registry.
+func TestSetupLamps_hostRegistry(t *testing.T) {
+	alarm := registerGlobalPin(t, "TAUT_T_HOST_ALARM")
+	cfg := instrument.Lamps{Required: true, Lamp: []instrument.Lamp{{Name: "alarm", Pin: "TAUT_T_HOST_ALARM", Shows: "alarm"}}}
+	board, err := setupLamps(cfg, false, zerolog.Nop())
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	done := make(chan error)
+	go func() { done <- board.Run(ctx) }()
+	board.Publish(monitor.Entry{Kind: monitor.KindState, String: "C4", State: monitor.Alarm})
+	waitUntil(t, func() bool { return alarm.Read() == gpio.High })
+	cancel()
+	<-done
+	if err := board.Halt(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// registerGlobalPin puts a fake pin in periph's process-wide registry for one test.
+func registerGlobalPin(t *testing.T, name string) *gpiotest.Pin {
+	t.Helper()
+	p := &gpiotest.Pin{N: name, Num: 990}
+	if err := gpioreg.Register(p); err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { _ = gpioreg.Unregister(name) })
+	return p
+}
+
 func waitUntil(t *testing.T, cond func() bool) {
 	t.Helper()
 	deadline := time.Now().Add(3 * time.Second)
@@ -143,11 +194,11 @@ func exciterConfig(pins ...string) *instrument.Config {
 }
 
 func TestSetupExciter(t *testing.T) {
-	pins := registerPins(t, "TAUT_T_EXC_BASS", "TAUT_T_EXC_D2")
+	lookup, pins := fakePins("TAUT_T_EXC_BASS", "TAUT_T_EXC_D2")
 	t.Run("disabled", func(t *testing.T) {
 		cfg := exciterConfig("NOPE")
 		cfg.Exciter.Enabled = false
-		if d, err := setupExciter(cfg, zerolog.Nop()); d != nil || err != nil {
+		if d, err := setupExciterWith(lookup, cfg, zerolog.Nop()); d != nil || err != nil {
 			t.Fatalf("got %v, %v; want nil, nil", d, err)
 		}
 	})
@@ -155,7 +206,7 @@ func TestSetupExciter(t *testing.T) {
 		// C2a and C2b are struck together by one driver; D2 has its own, and the third
 		// string in the list (no pin) is simply not excited.
 		cfg := exciterConfig("TAUT_T_EXC_BASS", "TAUT_T_EXC_BASS", "TAUT_T_EXC_D2")
-		d, err := setupExciter(cfg, zerolog.Nop())
+		d, err := setupExciterWith(lookup, cfg, zerolog.Nop())
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -188,7 +239,7 @@ func TestSetupExciter(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			_, err := setupExciter(tt.cfg, zerolog.Nop())
+			_, err := setupExciterWith(lookup, tt.cfg, zerolog.Nop())
 			if err == nil || !strings.Contains(err.Error(), tt.want) {
 				t.Fatalf("error %v, want %q", err, tt.want)
 			}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"runtime"
+	"strings"
 	"sync"
 
 	"taut/capture"
@@ -17,12 +18,13 @@ type fileResult struct {
 	err   error // the file could not be read (fully); notes holds what could be measured
 }
 
-// measuredNote is one note of a file: its onset and either a measurement or the
-// reason there is none (silence, noise, clipping, too short).
+// measuredNote is one note of a file: its channel, its onset and either a measurement
+// or the reason there is none (silence, noise, clipping, too short).
 type measuredNote struct {
-	onsetS float64
-	note   pitch.Note
-	err    error
+	channel int // 1-based; 0 = all channels mixed (--mix)
+	onsetS  float64
+	note    pitch.Note
+	err     error
 }
 
 // measureFiles measures the files on all CPUs and delivers the results in the order
@@ -94,25 +96,76 @@ func (m *meter) measure(path string) fileResult {
 		res.err = fmt.Errorf("%s: %w", path, err)
 		return res
 	}
-	m.mono = capture.Channel(m.mono, samples, f.Channels, m.opts.channel)
-	rate := float64(f.SampleRate)
+	for _, ch := range m.channels(f.Channels) {
+		m.mono = capture.Channel(m.mono, samples, f.Channels, ch)
+		if f.Channels == 1 {
+			ch = 1
+		}
+		res.notes = m.measureChannel(res.notes, a, ch, float64(f.SampleRate))
+	}
+	if res.err == nil && !anyPitched(res.notes) {
+		res.err = fmt.Errorf("%s: no pitched note found (%s)", path, noPitchReasons(res.notes))
+	}
+	return res
+}
+
+// channels lists the channels to analyse, as capture.Channel picks them: the one asked
+// for, 0 for the mix, or every channel in turn.
+func (m *meter) channels(n int) []int {
+	switch {
+	case m.opts.channel > 0:
+		return []int{m.opts.channel}
+	case m.opts.mix || n == 1:
+		return []int{0}
+	}
+	chans := make([]int, n)
+	for i := range chans {
+		chans[i] = i + 1
+	}
+	return chans
+}
+
+// measureChannel segments m.mono into notes and analyses each, appending to dst.
+func (m *meter) measureChannel(dst []measuredNote, a *pitch.Analyzer, ch int, rate float64) []measuredNote {
 	m.segs = pitch.Segments(m.segs[:0], m.mono, rate, a.Config().MinHz)
 	if len(m.segs) == 0 {
 		// No onset stands out (a steady tone from its first sample, or noise): measure
-		// the start of the file as one note and let the analyser say if it is no note.
+		// the start of the channel as one note and let the analyser say if it is no note.
 		m.segs = append(m.segs, pitch.Segment{Onset: 0, Start: 0, End: min(len(m.mono), pitch.WindowLen(rate, a.Config().MinHz))})
 	}
 	for _, s := range m.segs {
-		mn := measuredNote{onsetS: float64(s.Onset) / rate}
+		mn := measuredNote{channel: ch, onsetS: float64(s.Onset) / rate}
 		start, end := max(0, s.Start), min(len(m.mono), s.End)
 		if start >= end {
 			mn.err = pitch.ErrTooShort
 		} else {
 			mn.err = a.Analyze(&mn.note, m.mono[start:end], pitch.Hint{})
 		}
-		res.notes = append(res.notes, mn)
+		dst = append(dst, mn)
 	}
-	return res
+	return dst
+}
+
+func anyPitched(notes []measuredNote) bool {
+	for _, n := range notes {
+		if n.err == nil {
+			return true
+		}
+	}
+	return false
+}
+
+// noPitchReasons summarises why no note had a pitch, e.g. "2 segment(s): pitch: silence".
+func noPitchReasons(notes []measuredNote) string {
+	var reasons []string
+	seen := map[string]bool{}
+	for _, n := range notes {
+		if r := n.err.Error(); !seen[r] {
+			seen[r] = true
+			reasons = append(reasons, r)
+		}
+	}
+	return fmt.Sprintf("%d segment(s) analysed: %s", len(notes), strings.Join(reasons, "; "))
 }
 
 // analyzer returns the analyser for a sample rate, making it on first use with a

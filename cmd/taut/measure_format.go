@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"strconv"
 
 	"taut/pitch/note"
 )
@@ -29,6 +30,7 @@ func newMeasureWriter(w io.Writer, opts measureOptions, files []string) *measure
 // noteJSON is one line of `taut measure --json`. Its field names are a stable format.
 type noteJSON struct {
 	File          string        `json:"file"`
+	Channel       int           `json:"channel"` // 1-based; 0 = all channels mixed (--mix)
 	OnsetS        float64       `json:"onset_s"`
 	Note          string        `json:"note"`  // nearest 12-TET note to the first partial
 	Cents         float64       `json:"cents"` // first partial against that note
@@ -49,9 +51,10 @@ type partialJSON struct {
 
 // noPitchJSON is the line for a note the analyser could not measure.
 type noPitchJSON struct {
-	File   string  `json:"file"`
-	OnsetS float64 `json:"onset_s"`
-	Error  string  `json:"error"`
+	File    string  `json:"file"`
+	Channel int     `json:"channel"`
+	OnsetS  float64 `json:"onset_s"`
+	Error   string  `json:"error"`
 }
 
 func (mw *measureWriter) write(r fileResult) error {
@@ -71,7 +74,7 @@ func (mw *measureWriter) write(r fileResult) error {
 
 func (mw *measureWriter) writeJSON(file string, n measuredNote) error {
 	if n.err != nil {
-		return mw.enc.Encode(noPitchJSON{File: file, OnsetS: n.onsetS, Error: n.err.Error()})
+		return mw.enc.Encode(noPitchJSON{File: file, Channel: n.channel, OnsetS: n.onsetS, Error: n.err.Error()})
 	}
 	midi, cents := note.Nearest(n.note.FundamentalHz, mw.opts.refHz)
 	parts := make([]partialJSON, len(n.note.Partials))
@@ -79,7 +82,7 @@ func (mw *measureWriter) writeJSON(file string, n measuredNote) error {
 		parts[i] = partialJSON{N: p.N, Hz: p.Hz, DB: p.DB}
 	}
 	return mw.enc.Encode(noteJSON{
-		File: file, OnsetS: n.onsetS, Note: note.Name(midi), Cents: cents, RefHz: mw.opts.refHz,
+		File: file, Channel: n.channel, OnsetS: n.onsetS, Note: note.Name(midi), Cents: cents, RefHz: mw.opts.refHz,
 		FundamentalHz: n.note.FundamentalHz, F0Hz: n.note.F0Hz, Inharmonicity: n.note.B,
 		Clarity: n.note.Clarity, LevelDB: n.note.LevelDB, Partials: parts,
 	})
@@ -88,21 +91,25 @@ func (mw *measureWriter) writeJSON(file string, n measuredNote) error {
 func (mw *measureWriter) writeRow(file string, n measuredNote) error {
 	if !mw.header {
 		mw.header = true
-		if _, err := fmt.Fprintf(mw.w, "%-*s  %8s  %-4s  %7s  %10s  %10s  %9s  %8s  %7s\n", mw.fileWidth,
-			"file", "onset_s", "note", "cents", "f1_hz", "f0_hz", "B", "partials", "clarity"); err != nil {
+		if _, err := fmt.Fprintf(mw.w, "%-*s  %3s  %8s  %-4s  %7s  %10s  %10s  %9s  %8s  %7s\n", mw.fileWidth,
+			"file", "ch", "onset_s", "note", "cents", "f1_hz", "f0_hz", "B", "partials", "clarity"); err != nil {
 			return err
 		}
 	}
+	ch := "mix"
+	if n.channel > 0 {
+		ch = strconv.Itoa(n.channel)
+	}
 	if n.err != nil {
-		_, err := fmt.Fprintf(mw.w, "%-*s  %8.3f  no pitch: %v\n", mw.fileWidth, file, n.onsetS, n.err)
+		_, err := fmt.Fprintf(mw.w, "%-*s  %3s  %8.3f  no pitch: %v\n", mw.fileWidth, file, ch, n.onsetS, n.err)
 		return err
 	}
 	midi, cents := note.Nearest(n.note.FundamentalHz, mw.opts.refHz)
 	if math.Abs(cents) < 0.005 {
 		cents = 0 // print +0.00, not -0.00
 	}
-	_, err := fmt.Fprintf(mw.w, "%-*s  %8.3f  %-4s  %+7.2f  %10.4f  %10.4f  %9.2e  %8d  %7.3f\n", mw.fileWidth,
-		file, n.onsetS, note.Name(midi), cents, n.note.FundamentalHz, n.note.F0Hz, n.note.B,
+	_, err := fmt.Fprintf(mw.w, "%-*s  %3s  %8.3f  %-4s  %+7.2f  %10.4f  %10.4f  %9.2e  %8d  %7.3f\n", mw.fileWidth,
+		file, ch, n.onsetS, note.Name(midi), cents, n.note.FundamentalHz, n.note.F0Hz, n.note.B,
 		len(n.note.Partials), n.note.Clarity)
 	return err
 }

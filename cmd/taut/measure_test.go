@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"bytes"
 	"context"
+	"encoding/binary"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -69,6 +70,8 @@ func TestMeasureFixtures(t *testing.T) {
 		{"float A4", []string{fixture("float-a4.wav")}, []wantNote{{"A4", 0, 0.1, 4e-4}}},
 		{"24-bit left channel", []string{"--channel", "1", fixture("stereo-24bit.wav")}, []wantNote{{"E3", 0, 0.1, 0}}},
 		{"24-bit right channel", []string{fixture("stereo-24bit.wav"), "--channel=2"}, []wantNote{{"B3", 0, 0.1, 0}}},
+		// testdata/README.md: E3 left (B 4e-5), B3 right (B 3e-5); each channel on its own by default.
+		{"24-bit both channels", []string{fixture("stereo-24bit.wav")}, []wantNote{{"E3", 0, 0.1, 4e-5}, {"B3", 0, 0.1, 3e-5}}},
 		{"narrowed search", []string{"--min-hz", "90", "--max-hz", "130", fixture("piano-a2-weak-first.wav")}, []wantNote{{"A2", 0, 0.1, 0}}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
@@ -144,7 +147,7 @@ func TestMeasureTable(t *testing.T) {
 	if len(lines) != 4 {
 		t.Fatalf("got %d lines; want a header and 3 notes:\n%s", len(lines), out.String())
 	}
-	for _, h := range []string{"file", "onset_s", "note", "cents", "f1_hz", "f0_hz", "B", "partials", "clarity"} {
+	for _, h := range []string{"file", "ch", "onset_s", "note", "cents", "f1_hz", "f0_hz", "B", "partials", "clarity"} {
 		if !strings.Contains(lines[0], h) {
 			t.Errorf("header lacks %q: %s", h, lines[0])
 		}
@@ -153,7 +156,7 @@ func TestMeasureTable(t *testing.T) {
 	// (reference-values §5: 440 → 442 is +7.851 cents).
 	for i, name := range []string{"G3", "B3", "D4"} {
 		f := strings.Fields(lines[i+1])
-		if len(f) != 9 || f[2] != name || f[3] != "-7.85" {
+		if len(f) != 10 || f[1] != "1" || f[3] != name || f[4] != "-7.85" {
 			t.Errorf("row %d = %q; want %s at -7.85 cents", i, lines[i+1], name)
 		}
 	}
@@ -190,6 +193,89 @@ func TestMeasureBadFilesAreReportedAndOthersMeasured(t *testing.T) {
 	}
 }
 
+// TestMeasureChannels: a multichannel file is analysed channel by channel unless asked
+// otherwise; the mix of two strings is only analysed on request (testdata/README.md:
+// stereo-24bit.wav holds E3 left and B3 right; their mix reads as a common subharmonic).
+func TestMeasureChannels(t *testing.T) {
+	f := fixture("stereo-24bit.wav")
+	for _, c := range []struct {
+		name      string
+		args      []string
+		wantChans []int
+		wantNotes []string // "" = not checked (the mix)
+	}{
+		{"EachByDefault", []string{f}, []int{1, 2}, []string{"E3", "B3"}},
+		{"OneChannel", []string{"--channel", "2", f}, []int{2}, []string{"B3"}},
+		{"ExplicitMix", []string{"--mix", f}, []int{0}, []string{""}},
+		{"MonoIsChannelOne", []string{fixture("harp-c4-pluck.wav")}, []int{1}, []string{"C4"}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			got, stderr, err := measureJSON(t, c.args...)
+			if err != nil {
+				t.Fatalf("measure: %v\n%s", err, stderr)
+			}
+			if len(got) != len(c.wantChans) {
+				t.Fatalf("%d notes %s; want %d", len(got), summary(got), len(c.wantChans))
+			}
+			for i, n := range got {
+				if n.Channel != c.wantChans[i] || (c.wantNotes[i] != "" && n.Note != c.wantNotes[i]) {
+					t.Errorf("note %d: channel %d %s; want channel %d %s", i, n.Channel, n.Note, c.wantChans[i], c.wantNotes[i])
+				}
+			}
+		})
+	}
+	var out, errb bytes.Buffer
+	if err := cmdMeasure(context.Background(), []string{"--mix", f}, &out, &errb); err != nil || !strings.Contains(out.String(), " mix ") {
+		t.Errorf("table with --mix: %v; want the channel column to say mix:\n%s", err, out.String())
+	}
+}
+
+// TestMeasureNoPitchedNote: a readable file in which no note has a pitch fails the
+// command (exit status 1) with a message naming the file; other files still print.
+func TestMeasureNoPitchedNote(t *testing.T) {
+	silent := filepath.Join(t.TempDir(), "silent.wav")
+	if err := os.WriteFile(silent, pcm16WAV(48000, 1, make([]int16, 48000)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	good := fixture("harp-c4-pluck.wav")
+	notes, stderr, err := measureJSON(t, good, silent)
+	if err == nil || exitCode(err, new(bytes.Buffer)) != 1 || !strings.Contains(err.Error(), "1 of 2 files") {
+		t.Errorf("error = %v; want exit status 1 saying 1 of 2 files failed", err)
+	}
+	if want := silent + ": no pitched note found"; !strings.Contains(stderr, want) {
+		t.Errorf("stderr lacks %q:\n%s", want, stderr)
+	}
+	if len(notes) < 2 || notes[0].File != good || notes[0].Error != "" || notes[len(notes)-1].File != silent || notes[len(notes)-1].Error == "" {
+		t.Errorf("notes %s; want the good file's note, then the silent file's no-pitch line", summary(notes))
+	}
+	// One silent channel beside a pitched one is not a failure of the file.
+	_, _, err = measureJSON(t, fixture("stereo-24bit.wav"))
+	if err != nil {
+		t.Errorf("stereo file: %v", err)
+	}
+}
+
+// pcm16WAV builds a 16-bit PCM WAV file in memory.
+func pcm16WAV(rateHz, channels int, samples []int16) []byte {
+	var b bytes.Buffer
+	le := func(v any) { _ = binary.Write(&b, binary.LittleEndian, v) }
+	data := 2 * len(samples)
+	b.WriteString("RIFF")
+	le(uint32(36 + data))
+	b.WriteString("WAVEfmt ")
+	le(uint32(16))
+	le(uint16(1)) // PCM
+	le(uint16(channels))
+	le(uint32(rateHz))
+	le(uint32(rateHz * channels * 2))
+	le(uint16(channels * 2))
+	le(uint16(16))
+	b.WriteString("data")
+	le(uint32(data))
+	le(samples)
+	return b.Bytes()
+}
+
 func TestMeasureMissingChannel(t *testing.T) {
 	f := fixture("harp-c4-pluck.wav")
 	_, stderr, err := measureJSON(t, "--channel", "2", f)
@@ -210,6 +296,7 @@ func TestMeasureFlags(t *testing.T) {
 		{"ref zero", []string{"--ref", "0", f}, "--ref 0"},
 		{"ref not a number", []string{"--ref", "A4", f}, "invalid value"},
 		{"negative channel", []string{"--channel", "-1", f}, "--channel -1"},
+		{"channel and mix", []string{"--channel", "2", "--mix", f}, "give --channel 2 or --mix, not both"},
 		{"min-hz too low", []string{"--min-hz", "5", f}, "--min-hz 5"},
 		{"min above max", []string{"--min-hz", "500", "--max-hz", "100", f}, "is not below --max-hz"},
 	} {

@@ -55,16 +55,21 @@ func cmdReport(ctx context.Context, args []string, stdout, stderr io.Writer) err
 		return fmt.Errorf("report: %w", err)
 	}
 	fmt.Fprintf(stdout, "journal %s: %s\n", rest[0], rep)
-	return writeReport(stdout, entries, rep, cfg, rest[0], *outDir)
+	return writeReport(stdout, stderr, entries, rep, cfg, rest[0], *outDir)
 }
 
 // writeReport builds the report, writes its files durably into dir and prints the
-// summary table and the paths. The demo uses it too.
-func writeReport(stdout io.Writer, entries []monitor.Entry, rep *journal.ReadReport,
+// summary table and the paths. A config that does not know many of the journal's
+// strings is warned about on stderr as well (the table repeats it). The demo uses it
+// too.
+func writeReport(stdout, stderr io.Writer, entries []monitor.Entry, rep *journal.ReadReport,
 	cfg *instrument.Config, journalPath, dir string) error {
 	r := report.Build(entries, report.Options{
 		Config: cfg, JournalPath: journalPath, ReadSummary: rep.String(), ReadClean: rep.Clean(),
 	})
+	if msg := r.ConfigWarning(); msg != "" {
+		fmt.Fprintf(stderr, "report: WARNING: %s\n", msg)
+	}
 	if len(r.Readings) == 0 {
 		fmt.Fprintln(stdout, "report: the journal holds no readings; the report lists the strings only")
 	}

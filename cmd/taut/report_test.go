@@ -195,3 +195,34 @@ func TestReport_RendersInChromium(t *testing.T) {
 		t.Errorf("%d SVG plots, want 5 (cents, margin, load, one per string)", svgs)
 	}
 }
+
+// TestReport_WrongConfigWarns: a config that does not know the journal's strings
+// (here: a harp config for a journal of strings A and B) is warned about on stderr
+// and in the page, naming the strings, instead of silently judging them all as
+// "not in config".
+func TestReport_WrongConfigWarns(t *testing.T) {
+	dir := t.TempDir()
+	jdir := filepath.Join(dir, "journal")
+	writeJournal(t, jdir)
+	out := filepath.Join(dir, "report")
+	var stdout, stderr bytes.Buffer
+	err := cmdReport(context.Background(), []string{"--config", "../../configs/harp36.toml", "--out", out, jdir},
+		&stdout, &stderr)
+	if err != nil {
+		t.Fatalf("%v\n%s%s", err, stdout.String(), stderr.String())
+	}
+	want := "does not know 2 of the 2 strings in the journal (100 %): A, B"
+	if !strings.Contains(stderr.String(), "report: WARNING: ") || !strings.Contains(stderr.String(), want) {
+		t.Errorf("stderr lacks the warning %q:\n%s", want, stderr.String())
+	}
+	page, err := os.ReadFile(filepath.Join(out, "report.html"))
+	if err != nil || !bytes.Contains(page, []byte("Is this the right config?")) || !bytes.Contains(page, []byte(want)) {
+		t.Errorf("report.html lacks the config banner (err %v)", err)
+	}
+	// The right amount of trust: with no config at all there is nothing to warn about.
+	stderr.Reset()
+	if err := cmdReport(context.Background(), []string{"--out", out, jdir}, &stdout, &stderr); err != nil ||
+		strings.Contains(stderr.String(), "WARNING") {
+		t.Errorf("without a config: err %v, stderr %q", err, stderr.String())
+	}
+}

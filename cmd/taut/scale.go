@@ -12,6 +12,25 @@ import (
 	"taut/monitor/tension"
 )
 
+// scaleHelp explains the sheet in `taut scale -h`.
+const scaleHelp = `usage: taut scale [--units si|kgf|lbf] [--json | --csv] CONFIG
+
+Prints the scale sheet of an instrument config: for every string its target pitch,
+speaking length, construction, mass per length, tension, breaking load, margin (tension
+as a share of the breaking load) and predicted inharmonicity B, then totals per section
+and for the whole instrument.
+
+The target is the pitch of the first partial, what a tuner hears and shows. Tension,
+margin and B are computed from the ideal-string f0 that sounds it, f0 = f1/√(1+B),
+which is a little lower (about 14 cents at a piano's top C).
+
+A string is flagged "warn" above the config's margin_warn, and never later than 70 %
+of its breaking load; "ALARM" above margin_alarm; "low" below 20 %. Any flagged high
+margin prints the safety caution.
+
+flags:
+`
+
 // cmdScale prints the scale sheet of a config: per string its target, length,
 // construction, mass per length, tension, breaking load, margin and predicted B,
 // with flags and totals per section and for the instrument.
@@ -19,10 +38,10 @@ func cmdScale(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	fs := flag.NewFlagSet("scale", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	units := fs.String("units", "si", "force units of the text and CSV output: si (N), kgf or lbf")
-	asJSON := fs.Bool("json", false, "print the scaleSheet as JSON (always SI: newtons, metres, kg/m)")
-	asCSV := fs.Bool("csv", false, "print one CSV row per string")
+	asJSON := fs.Bool("json", false, "print the scale sheet as JSON (always SI: newtons, metres, kg/m)")
+	asCSV := fs.Bool("csv", false, "print one CSV row per string (the caution, if any, goes to stderr)")
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: taut scale [--units si|kgf|lbf] [--json | --csv] CONFIG")
+		fmt.Fprint(stderr, scaleHelp)
 		fs.PrintDefaults()
 	}
 	path, err := scaleConfigArg(fs, args)
@@ -40,7 +59,10 @@ func cmdScale(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if err != nil {
 		return err
 	}
-	sh := newScaleSheet(cfg)
+	sh, err := newScaleSheet(cfg)
+	if err != nil {
+		return usageError{fmt.Errorf("scale %s: %w", path, err)}
+	}
 	switch {
 	case *asJSON:
 		enc := json.NewEncoder(stdout)
@@ -48,7 +70,7 @@ func cmdScale(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		return enc.Encode(sh.rounded())
 	case *asCSV:
 		if sh.Caution != "" {
-			fmt.Fprintln(stderr, sh.Caution)
+			fmt.Fprintln(stderr, cautionText(sh.Caution))
 		}
 		return writeScaleCSV(stdout, sh, unit)
 	}
@@ -78,7 +100,9 @@ func scaleConfigArg(fs *flag.FlagSet, args []string) (string, error) {
 	return path, nil
 }
 
-// loadConfig loads a config; a config with errors is a usage error (exit status 2).
+// loadConfig loads a config. A config with errors, or one that cannot be read (missing,
+// a directory, no permission), is a usage error (exit status 2); the message names the
+// path as given.
 func loadConfig(cmd, path string) (*instrument.Config, error) {
 	cfg, err := instrument.Load(path)
 	var list *instrument.Errors
@@ -86,7 +110,7 @@ func loadConfig(cmd, path string) (*instrument.Config, error) {
 		return nil, usageError{fmt.Errorf("%s %s: %w", cmd, path, err)}
 	}
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w", cmd, err)
+		return nil, usageError{fmt.Errorf("%s: %w", cmd, err)}
 	}
 	return cfg, nil
 }

@@ -16,13 +16,6 @@ import (
 // be strung with the wrong gauge.
 const scaleLowMargin = 0.20
 
-// scaleCaution is shown whenever a margin is high (design.md "Cautions").
-const scaleCaution = `CAUTION: strings under tension store a lot of energy, and a breaking string can injure
-eyes and hands. Wear eye protection when bringing strings up to pitch, raise the pitch in
-stages, and follow the instrument maker's specification and local professional practice.
-These figures are estimates from the data in the config; they do not replace a qualified
-technician's judgement.`
-
 // Flags of one string on the scale sheet.
 const (
 	scaleFlagLow   = "low"
@@ -30,15 +23,17 @@ const (
 	scaleFlagAlarm = "ALARM"
 )
 
-// scaleRow is one string on the scale sheet, in SI.
+// scaleRow is one string on the scale sheet, in SI. The target is the pitch of the
+// first partial (what a tuner shows); f0 is the ideal-string fundamental that sounds
+// it, and every tension figure comes from f0 (tension package doc, "Target pitch").
 type scaleRow struct {
 	ID             string  `json:"id"`
 	Note           string  `json:"note"`
 	Section        string  `json:"section"`
-	TargetHz       float64 `json:"target_hz"`
+	TargetHz       float64 `json:"target_hz"` // first partial
 	LengthM        float64 `json:"length_m"`
-	F0Hz           float64 `json:"f0_hz"`
-	FirstPartialHz float64 `json:"first_partial_hz"`
+	F0Hz           float64 `json:"f0_hz"`            // ideal-string f0 = target/√(1+B)
+	FirstPartialHz float64 `json:"first_partial_hz"` // f0·√(1+B), equal to the target: a check`
 	Construction   string  `json:"construction"`
 	MassPerMKg     float64 `json:"mass_per_m_kg"`
 	MassWeighed    bool    `json:"mass_weighed"`
@@ -70,7 +65,7 @@ type scaleSheet struct {
 	TotalTensionN float64      `json:"total_tension_n"`
 	MinMargin     float64      `json:"min_margin"`
 	MaxMargin     float64      `json:"max_margin"`
-	MarginWarn    float64      `json:"margin_warn"`
+	MarginWarn    float64      `json:"margin_warn"` // the lower of the config's margin_warn and tension.CautionFloor
 	MarginAlarm   float64      `json:"margin_alarm"`
 	MarginLow     float64      `json:"margin_low"`
 	Bases         []scaleBasis `json:"strength_basis"`
@@ -83,22 +78,35 @@ type scaleBasis struct {
 	Basis    string `json:"basis"`
 }
 
-func newScaleSheet(cfg *instrument.Config) *scaleSheet {
+// scaleWarnAt is the margin above which a string is flagged and the caution shown:
+// the config's margin_warn, but never above tension.CautionFloor (a config may warn
+// earlier, never later).
+func scaleWarnAt(l instrument.Listen) float64 {
+	if l.MarginWarn > 0 {
+		return min(l.MarginWarn, tension.CautionFloor)
+	}
+	return tension.CautionFloor
+}
+
+func newScaleSheet(cfg *instrument.Config) (*scaleSheet, error) {
 	in := &cfg.Instrument
 	sh := &scaleSheet{
 		Instrument: in.Name, Config: cfg.Path, ReferenceHz: in.ReferenceHz,
-		MarginWarn: cfg.Listen.MarginWarn, MarginAlarm: cfg.Listen.MarginAlarm, MarginLow: scaleLowMargin,
+		MarginWarn: scaleWarnAt(cfg.Listen), MarginAlarm: cfg.Listen.MarginAlarm, MarginLow: scaleLowMargin,
 	}
 	seen := map[string]bool{}
 	for i := range in.Strings {
-		r := scaleRowOf(&in.Strings[i], cfg.Listen)
+		r, err := scaleRowOf(&in.Strings[i], sh.MarginWarn, sh.MarginAlarm)
+		if err != nil {
+			return nil, err
+		}
 		sh.Strings = append(sh.Strings, r)
 		if m := in.Strings[i].Phys.Core.Material; !seen[m.Name] {
 			seen[m.Name] = true
 			sh.Bases = append(sh.Bases, scaleBasis{m.Name, m.Basis})
 		}
 		if r.Flag == scaleFlagWarn || r.Flag == scaleFlagAlarm {
-			sh.Caution = scaleCaution
+			sh.Caution = tension.Caution
 		}
 	}
 	all := scaleSum("all", sh.Strings)
@@ -112,32 +120,38 @@ func newScaleSheet(cfg *instrument.Config) *scaleSheet {
 		}
 		sh.Sections = append(sh.Sections, scaleSum(name, rows))
 	}
-	return sh
+	return sh, nil
 }
 
-func scaleRowOf(s *instrument.String, l instrument.Listen) scaleRow {
+// scaleRowOf computes one string's figures from the ideal f0 that sounds its target
+// as the first partial, and flags it against warnAt and alarmAt.
+func scaleRowOf(s *instrument.String, warnAt, alarmAt float64) (scaleRow, error) {
 	p := &s.Phys
-	t := p.Tension(s.TargetHz)
+	f0, err := p.F0ForFirstPartial(s.TargetHz)
+	if err != nil {
+		return scaleRow{}, fmt.Errorf("string %s: target %.2f Hz: %w", s.ID, s.TargetHz, err)
+	}
+	t := p.Tension(f0)
 	r := scaleRow{
 		ID: s.ID, Note: s.Note, Section: s.Section, TargetHz: s.TargetHz, LengthM: p.LengthM,
-		F0Hz: s.TargetHz, FirstPartialHz: p.FirstPartialHz(s.TargetHz),
+		F0Hz: f0, FirstPartialHz: p.FirstPartialHz(f0),
 		Construction: scaleConstruction(p), MassPerMKg: p.MassPerLength(), MassWeighed: p.MeasuredMuKgM > 0,
 		TensionN: t, BreakingN: p.BreakingLoad(), Margin: p.Margin(t), Inharmonicity: p.Inharmonicity(t),
 		BreakingHz: p.BreakingHz(), StrengthBasis: p.Core.Material.Basis,
 	}
 	// Warn above margin_warn (default 70 %: "the commonly accepted maximum upper
-	// tension limit", and bass strings "never intentionally… exceed 70 %") and alarm
-	// above margin_alarm (default 85 %, about 1.4 semitones below breaking) — trade
-	// figures, reference-values §4.1.
+	// tension limit", and bass strings "never intentionally… exceed 70 %"), never later
+	// than the 70 % caution floor, and alarm above margin_alarm (default 85 %, about
+	// 1.4 semitones below breaking) — trade figures, reference-values §4.1.
 	switch {
-	case r.Margin > l.MarginAlarm:
+	case r.Margin > alarmAt:
 		r.Flag = scaleFlagAlarm
-	case r.Margin > l.MarginWarn:
+	case r.Margin > warnAt:
 		r.Flag = scaleFlagWarn
 	case r.Margin < scaleLowMargin:
 		r.Flag = scaleFlagLow
 	}
-	return r
+	return r, nil
 }
 
 // rounded returns a copy with every number rounded to 7 significant digits, so
@@ -194,23 +208,19 @@ func scaleSum(name string, rows []scaleRow) scaleTotal {
 	return t
 }
 
-// scaleShortNames are how a material reads in a construction ("steel 1.50 + Cu 1.00 mm").
-var scaleShortNames = map[string]string{
-	"music_wire": "steel", "phosphor_bronze": "bronze", "copper": "Cu", "fluorocarbon": "fluorocarbon",
-}
-
-func scaleMaterialLabel(m *tension.Material, wound bool) string {
-	if s, ok := scaleShortNames[m.Name]; ok && (wound || m.Name != "music_wire") {
-		return s
-	}
+// scaleMaterialLabel is how a material reads on the sheet: its config name with
+// spaces ("music wire", "phosphor bronze"), the same for a core, a wrap and the
+// strength-basis list.
+func scaleMaterialLabel(m *tension.Material) string {
 	return strings.ReplaceAll(m.Name, "_", " ")
 }
 
-// scaleConstruction describes a string, e.g. "music wire 1.05 mm" or "steel 1.50 + Cu 1.00 mm".
+// scaleConstruction describes a string, e.g. "music wire 1.05 mm" or
+// "music wire 1.50 + copper 1.00 mm".
 func scaleConstruction(p *tension.String) string {
-	parts := []string{fmt.Sprintf("%s %.2f", scaleMaterialLabel(p.Core.Material, p.Wound()), tension.ToMM(p.Core.DiameterM))}
+	parts := []string{fmt.Sprintf("%s %.2f", scaleMaterialLabel(p.Core.Material), tension.ToMM(p.Core.DiameterM))}
 	for _, w := range p.Wraps {
-		parts = append(parts, fmt.Sprintf("%s %.2f", scaleMaterialLabel(w.Material, true), tension.ToMM(w.DiameterM)))
+		parts = append(parts, fmt.Sprintf("%s %.2f", scaleMaterialLabel(w.Material), tension.ToMM(w.DiameterM)))
 	}
 	return strings.Join(parts, " + ") + " mm"
 }

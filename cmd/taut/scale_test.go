@@ -6,7 +6,9 @@ import (
 	"encoding/json"
 	"errors"
 	"flag"
+	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -14,6 +16,7 @@ import (
 	"testing"
 
 	"taut/monitor/instrument"
+	"taut/monitor/tension"
 )
 
 // The -update flag rewrites the goldens. Other test files of this package may
@@ -99,27 +102,23 @@ func TestScale_Golden(t *testing.T) {
 }
 
 func TestScale_Caution(t *testing.T) {
-	// design.md "Cautions": output that shows high margins carries the caution.
+	// design.md "Cautions": output that shows high margins carries the caution, in the
+	// one wording of tension.Caution.
 	out, _, err := runCmd(t, cmdScale, "testdata/scale_high.toml")
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"CAUTION", "eye protection", "raise the pitch in\nstages", "maker's specification and local professional practice"} {
-		if !strings.Contains(out, want) {
+	if !strings.Contains(strings.Join(strings.Fields(out), " "), "CAUTION: "+tension.Caution) {
+		t.Errorf("output lacks the caution %q", tension.Caution)
+	}
+	for _, want := range []string{"eye protection", "raise pitch in stages", "maker's specification and local professional practice"} {
+		if !strings.Contains(strings.Join(strings.Fields(out), " "), want) {
 			t.Errorf("output lacks %q", want)
 		}
 	}
-	for id, flag := range map[string]string{"low": "low", "normal": "3.88e-04", "warn": "warn", "alarm": "ALARM"} {
-		found := false
-		for _, line := range strings.Split(out, "\n") {
-			if f := strings.Fields(line); len(f) == 13 || len(f) == 14 { // a table row
-				if f[0] == id {
-					found = f[len(f)-1] == flag
-				}
-			}
-		}
-		if !found {
-			t.Errorf("string %q: no row ending in %q", id, flag)
+	for id, flag := range map[string]string{"low": "low", "normal": "3.89e-04", "warn": "warn", "alarm": "ALARM"} {
+		if got := scaleRowFlag(out, id); got != flag {
+			t.Errorf("string %q: row ends in %q, want %q", id, got, flag)
 		}
 	}
 	out, _, _ = runCmd(t, cmdScale, "../../configs/upright.toml")
@@ -129,6 +128,128 @@ func TestScale_Caution(t *testing.T) {
 	_, stderr, err := runCmd(t, cmdScale, "--csv", "testdata/scale_high.toml")
 	if err != nil || !strings.Contains(stderr, "CAUTION") {
 		t.Errorf("--csv with high margins: err %v, stderr %q", err, stderr)
+	}
+}
+
+// scaleRowFlag returns the last field of the table row of string id ("" when none).
+func scaleRowFlag(out, id string) string {
+	for _, line := range strings.Split(out, "\n") {
+		if f := strings.Fields(line); len(f) >= 13 && f[0] == id {
+			return f[len(f)-1]
+		}
+	}
+	return ""
+}
+
+// TestScale_CautionFloor: a config's margin_warn may warn earlier than the 70 %
+// caution floor (tension.CautionFloor, reference-values §4.1 trade figure), never later.
+func TestScale_CautionFloor(t *testing.T) {
+	for _, c := range []struct {
+		name       string
+		warn       float64
+		wantFlag   string
+		wantWarnAt float64
+	}{
+		{"LateConfigCapped", 0.80, "warn", 0.70}, // 76 % string: flagged although margin_warn is 80 %
+		{"EarlyConfigKept", 0.60, "warn", 0.60},
+		{"AboveString", 0.78, "warn", 0.70},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			cfg := writeFloorConfig(t, c.warn)
+			out, _, err := runCmd(t, cmdScale, cfg)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got := scaleRowFlag(out, "warn"); got != c.wantFlag {
+				t.Errorf("76 %% string flagged %q, want %q:\n%s", got, c.wantFlag, out)
+			}
+			if !strings.Contains(out, "CAUTION: ") {
+				t.Error("no caution with a string above the floor")
+			}
+			js, _, err := runCmd(t, cmdScale, "--json", cfg)
+			if err != nil {
+				t.Fatal(err)
+			}
+			var doc struct {
+				MarginWarn float64 `json:"margin_warn"`
+				Caution    string  `json:"caution"`
+			}
+			if err := json.Unmarshal([]byte(js), &doc); err != nil {
+				t.Fatal(err)
+			}
+			if doc.MarginWarn != c.wantWarnAt || doc.Caution != tension.Caution {
+				t.Errorf("JSON margin_warn %g, caution %q; want %g and tension.Caution", doc.MarginWarn, doc.Caution, c.wantWarnAt)
+			}
+		})
+	}
+}
+
+// writeFloorConfig writes scale_high.toml's "warn" string (76 % of an invented flat
+// strength) alone, with the given margin_warn and margin_alarm 0.9.
+func writeFloorConfig(t *testing.T, warn float64) string {
+	t.Helper()
+	src := fmt.Sprintf(`name = "caution floor test"
+[listen]
+margin_warn = %g
+margin_alarm = 0.9
+[materials.test_steel]
+like = "music_wire"
+strength_mpa = 2000
+basis = "invented flat strength for the test"
+[[string]]
+id = "warn"
+note = "A4"
+length_mm = 500
+core = "test_steel"
+core_mm = 0.9
+`, warn)
+	path := filepath.Join(t.TempDir(), "floor.toml")
+	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+// TestScale_TargetIsFirstPartial: the target is the first partial; f0, tension, margin
+// and B come from the ideal f0 = f1/√(1+B) (tension package doc). reference-values §1.2
+// E6 (trade figure from a technicians' mailing list, 2000): C8 on 54.0 mm of 0.785 mm
+// music wire is 776.5 N, 70.8 % of the ASTM minimum, when C8 is taken as f0; tuned so
+// that its first partial reads C8 it is 763.9 N, 69.7 % (derived, 14.2 cents lower f0).
+func TestScale_TargetIsFirstPartial(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "c8.toml")
+	src := "name = \"top C\"\n[[string]]\nid = \"C8\"\nnote = \"C8\"\nlength_mm = 54\ncore = \"music_wire\"\ncore_mm = 0.785\n"
+	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, _, err := runCmd(t, cmdScale, "--json", path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc struct {
+		Strings []scaleRow `json:"strings"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	r := doc.Strings[0]
+	for _, c := range []struct {
+		what      string
+		got, want float64
+		tol       float64
+	}{
+		{"target_hz (ISO 16: C8)", r.TargetHz, 4186.009, 1e-6},
+		{"first_partial_hz", r.FirstPartialHz, 4186.009, 1e-6},
+		{"f0_hz (derived)", r.F0Hz, 4151.859, 1e-6},
+		{"tension_n (derived)", r.TensionN, 763.89, 1e-4},
+		{"margin (derived)", r.Margin, 0.6966, 2e-4},
+		{"inharmonicity (derived)", r.Inharmonicity, 0.016518, 1e-4},
+	} {
+		if math.Abs(c.got-c.want) > c.tol*c.want {
+			t.Errorf("%s = %.7g, want %.7g", c.what, c.got, c.want)
+		}
+	}
+	if r.Flag != "" {
+		t.Errorf("flag %q: the first partial tuned to C8 is under the 70 %% floor", r.Flag)
 	}
 }
 
@@ -196,7 +317,7 @@ func TestScale_BadArgs(t *testing.T) {
 
 func TestCheck(t *testing.T) {
 	out, _, err := runCmd(t, cmdCheck, "../../configs/harp36.toml")
-	if err != nil || !strings.HasPrefix(out, "ok: 36 strings") {
+	if err != nil || !strings.HasPrefix(out, "ok: 36 strings") || strings.Contains(out, "warning") {
 		t.Errorf("check harp36: %q, %v", out, err)
 	}
 	out, _, err = runCmd(t, cmdCheck, "../../configs/upright.toml")
@@ -212,8 +333,91 @@ func TestCheck(t *testing.T) {
 	if code := exitCode(err, &bytes.Buffer{}); code != 2 {
 		t.Errorf("exit code %d, want 2", code)
 	}
-	_, _, err = runCmd(t, cmdCheck, "no/such/config.toml")
-	if err == nil || errors.As(err, &u) {
-		t.Errorf("missing file: %v; want a plain error (exit 1)", err)
+}
+
+// TestCheck_UnreadableConfig: a config that cannot be read is a config error (exit
+// status 2) whose message names the path exactly as given.
+func TestCheck_UnreadableConfig(t *testing.T) {
+	dir := t.TempDir()
+	for _, c := range []struct {
+		name, path, want string
+	}{
+		{"MissingAbsolute", filepath.Join(dir, "nonexist.toml"), "open " + filepath.Join(dir, "nonexist.toml") + ": no such file"},
+		{"MissingRelative", "no/such/config.toml", "open no/such/config.toml: no such file"},
+		{"Directory", dir, "read " + dir + ": is a directory"},
+	} {
+		for _, cmd := range []struct {
+			name string
+			run  func(context.Context, []string, io.Writer, io.Writer) error
+		}{{"check", cmdCheck}, {"scale", cmdScale}} {
+			t.Run(cmd.name+"/"+c.name, func(t *testing.T) {
+				_, _, err := runCmd(t, cmd.run, c.path)
+				var u usageError
+				if !errors.As(err, &u) || !strings.Contains(err.Error(), c.want) {
+					t.Fatalf("err = %v; want a usage error containing %q", err, c.want)
+				}
+				if code := exitCode(err, &bytes.Buffer{}); code != 2 {
+					t.Errorf("exit code %d, want 2", code)
+				}
+			})
+		}
+	}
+}
+
+// TestCheck_HighMarginWarnings: check still passes (exit 0) but warns, with the caution,
+// about strings over the caution floor and over margin_alarm.
+func TestCheck_HighMarginWarnings(t *testing.T) {
+	out, _, err := runCmd(t, cmdCheck, "testdata/scale_high.toml")
+	if err != nil || exitCode(err, &bytes.Buffer{}) != 0 {
+		t.Fatalf("check: %v; want exit status 0", err)
+	}
+	for _, want := range []string{
+		"ok: 4 strings",
+		"warning: string warn (A4): tension 966.6 N is 76.0 % of its 1272.3 N breaking load, above 70 %",
+		"warning: string alarm (C5): tension 1207.9 N is 85.6 % of its 1411.7 N breaking load, above margin_alarm 85 %",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+	if strings.Count(out, "warning:") != 2 || !strings.Contains(strings.Join(strings.Fields(out), " "), "CAUTION: "+tension.Caution) {
+		t.Errorf("want two warnings and the caution:\n%s", out)
+	}
+	// A config that warns at 80 % is still warned at the 70 % floor.
+	out, _, err = runCmd(t, cmdCheck, writeFloorConfig(t, 0.80))
+	if err != nil || !strings.Contains(out, "warning: string warn (A4)") || !strings.Contains(out, "CAUTION: ") {
+		t.Errorf("check with margin_warn 0.80: %v\n%s", err, out)
+	}
+}
+
+// TestHelpText: -h of each command prints its usage on stderr, exits 0 and does not
+// leak internal names.
+func TestHelpText(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		run  func(context.Context, []string, io.Writer, io.Writer) error
+		want []string
+	}{
+		{"scale", cmdScale, []string{"usage: taut scale", "first partial", "-units", "-json", "-csv"}},
+		{"check", cmdCheck, []string{"usage: taut check CONFIG", "exit status 2", "70 %"}},
+		{"measure", cmdMeasure, []string{"usage: taut measure", "-channel", "-mix"}},
+		{"inputs", cmdInputs, []string{"usage: taut inputs"}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			out, stderr, err := runCmd(t, c.run, "-h")
+			if err != nil || out != "" {
+				t.Fatalf("-h: err %v, stdout %q", err, out)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(stderr, w) {
+					t.Errorf("help lacks %q:\n%s", w, stderr)
+				}
+			}
+			for _, internal := range []string{"scaleSheet", "scaleRow", "measureOptions", "cmd" + strings.ToUpper(c.name[:1])} {
+				if strings.Contains(stderr, internal) {
+					t.Errorf("help leaks the internal name %q:\n%s", internal, stderr)
+				}
+			}
+		})
 	}
 }

@@ -15,7 +15,9 @@ import (
 
 // startStatus binds addr and serves the status page, JSON, events, metrics and
 // health until ctx is done, then shuts down gracefully (status.ShutdownTimeout).
-// Bind errors are returned at once; later serve errors are logged.
+// Bind errors are returned at once; later serve errors are logged. After cancelling
+// ctx, call Wait on the returned server before closing the log or the journal: it
+// returns once the shutdown has finished and its last log line is written.
 //
 // Binding policy: the page is for this machine unless the address says otherwise.
 // A bare port ("9440") binds 127.0.0.1. An address without a host (":9440") is
@@ -33,13 +35,17 @@ func startStatus(ctx context.Context, addr string, cfg *instrument.Config, stats
 		return nil, fmt.Errorf("status page: listen on %s: %w (is another taut or service using the port?)", bind, err)
 	}
 	srv := status.New(cfg, status.Options{Stats: stats, Version: buildVersion()})
-	go func() {
-		if err := srv.ServeListener(ctx, ln); err != nil {
+	err = srv.Start(ctx, ln, func(err error) {
+		if err != nil {
 			log.Error().Err(err).Msg("status page stopped")
 			return
 		}
 		log.Info().Msg("status page stopped")
-	}()
+	})
+	if err != nil { // a new server always starts; kept so that no listener leaks if not
+		ln.Close()
+		return nil, err
+	}
 	at := ln.Addr().String()
 	log.Info().Str("addr", at).Str("url", "http://"+at+"/").Msg("status page, /metrics and /healthz serving")
 	if !isLoopback(ln.Addr()) {

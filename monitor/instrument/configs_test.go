@@ -52,7 +52,7 @@ func checkHarp(t *testing.T, cfg *Config) {
 	var total float64
 	cores := map[string]bool{}
 	for _, s := range in.Strings {
-		tn := s.Phys.Tension(s.TargetHz)
+		tn := tensionAtTarget(t, s)
 		total += tn
 		cores[s.Phys.Core.Material.Name+map[bool]string{true: "+wrap"}[s.Phys.Wound()]] = true
 		if tn < 50 || tn > 350 {
@@ -72,17 +72,18 @@ func checkHarp(t *testing.T, cfg *Config) {
 	}
 }
 
-// checkUpright: reference-values §4.1 (trade, Island Piano): one piano string carries
-// 130–220 lbf (580–980 N); plain-wire margins along a scale run 24–70 % (pianotech
-// list, short scales), the demo keeps to 30–70 %; bass strings "never intentionally…
-// exceed 70 %" (pianotech list, 2008).
+// checkUpright: reference-values §4.1 (trade figure from a piano dealer's web page): one
+// piano string carries 130–220 lbf (580–980 N); plain-wire margins along a scale run
+// 24–70 % (reference-values §4.1, trade figure from a technicians' mailing list, short
+// scales), the demo keeps to 30–70 %; bass strings "never intentionally… exceed 70 %"
+// (reference-values §4.1, trade figure from a technicians' mailing list, 2008).
 func checkUpright(t *testing.T, cfg *Config) {
 	byNote := map[string]int{}
 	layers := map[int]bool{}
 	for _, s := range cfg.Instrument.Strings {
 		byNote[s.Note]++
 		layers[len(s.Phys.Wraps)] = true
-		tn := s.Phys.Tension(s.TargetHz)
+		tn := tensionAtTarget(t, s)
 		m := s.Phys.Margin(tn)
 		if s.Phys.Wound() {
 			if m > 0.70 {
@@ -110,4 +111,15 @@ func checkUpright(t *testing.T, cfg *Config) {
 	if byNote["C4"] != 3 || byNote["A1"] != 2 || byNote["A0"] != 1 {
 		t.Errorf("unisons C4 %d, A1 %d, A0 %d; want 3, 2, 1", byNote["C4"], byNote["A1"], byNote["A0"])
 	}
+}
+
+// tensionAtTarget is the tension of a string whose first partial sounds its target
+// (tension package doc, "Target pitch").
+func tensionAtTarget(t *testing.T, s String) float64 {
+	t.Helper()
+	f0, err := s.Phys.F0ForFirstPartial(s.TargetHz)
+	if err != nil {
+		t.Fatalf("%s: %v", s.ID, err)
+	}
+	return s.Phys.Tension(f0)
 }

@@ -17,17 +17,18 @@ func (p *parser) csvRows(v any) []*row {
 	at := p.at("string_table")
 	name, ok := v.(string)
 	if !ok || strings.TrimSpace(name) == "" || !strings.HasSuffix(strings.ToLower(name), ".csv") {
-		p.c.add(at, v, `want the name of a .csv file next to the config, e.g. "harp36.csv"`)
+		p.c.add(at, v, `want the name of a .csv file, relative to the config's directory, e.g. "harp36.csv"`)
 		return nil
 	}
-	file := p.sibling(name)
-	if !fs.ValidPath(file) {
-		p.c.add(at, v, "want a path inside the config's directory (no .. or leading /)")
+	file, data, err := p.readTable(name)
+	var pe *fs.PathError
+	switch {
+	case errors.As(err, &pe):
+		p.c.add(at, v, "cannot read the string table %s (%v); want an existing CSV file, named relative to the config's directory or by an absolute path",
+			file, pe.Err)
 		return nil
-	}
-	data, err := fs.ReadFile(p.fsys, file)
-	if err != nil {
-		p.c.add(at, v, "cannot read the string table (%v); want an existing CSV file next to the config", errors.Unwrap(err))
+	case err != nil:
+		p.c.add(at, v, "%v", err)
 		return nil
 	}
 	return p.parseCSV(file, data)

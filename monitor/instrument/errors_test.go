@@ -23,7 +23,7 @@ func TestParse_BrokenFiles(t *testing.T) {
 		{"WrongUnitInline", "inline_unit.toml", 6, "string#1.length_cm", `unit not accepted (the unit is part of the name); want one of "length_in"`},
 		{"DuplicateID", "duplicate_id.csv", 4, "id (row 3)", "duplicate id (first used at testdata/bad/duplicate_id.csv:2)"},
 		{"WrapWithoutCore", "wrap_without_core.csv", 3, "row 2", "wrap without core"},
-		{"AboveBreakingPitch", "above_breaking.toml", 6, "string#1.note", "above the breaking pitch 670.67 Hz"},
+		{"AboveBreakingPitch", "above_breaking.toml", 6, "string#1.note", "above the breaking pitch 670.74 Hz of this string (first partials; ideal-string f0 1046.46 Hz against 670.67 Hz"},
 		{"UnknownKey", "unknown_key.toml", 4, "listen.tolerence_cents", `unknown key in [listen] (did you mean "tolerance_cents"?)`},
 		{"UpperCaseKey", "upper_case.toml", 4, "listen.Margin_Warn", `keys are lower case; want "margin_warn"`},
 		{"UnknownColumn", "unknown_column.csv", 1, "column 3", `unknown column (did you mean "length_mm"?)`},

@@ -33,61 +33,81 @@ type rawFile struct {
 	Exciter     rawExciter             `toml:"exciter"`
 }
 
-// Load reads and validates the config file at path. A CSV string table it names is
-// read relative to the config file's directory.
+// Load reads and validates the config file at path. Errors name the path as given.
+// A CSV string table it names is read relative to the config file's directory, or
+// from its own absolute path.
 func Load(name string) (*Config, error) {
-	dir, base := filepath.Split(name)
-	if dir == "" {
-		dir = "."
+	data, err := os.ReadFile(name)
+	if err != nil {
+		return nil, fmt.Errorf("instrument: read config: %w", err) // *fs.PathError names the path
 	}
-	cfg, err := parse(os.DirFS(dir), base, dir)
-	if cfg != nil {
-		cfg.Path = name
+	p := newParser(name, data)
+	p.readTable = func(table string) (string, []byte, error) {
+		file := table
+		if !filepath.IsAbs(table) {
+			file = filepath.Join(filepath.Dir(name), filepath.FromSlash(table))
+		}
+		data, err := os.ReadFile(file)
+		return file, data, err
 	}
-	return cfg, err
+	return p.parse(data)
 }
 
 // Parse reads and validates the config file name inside fsys; a CSV string table it
-// names is resolved relative to name inside fsys. Any problem in the file comes back
-// as *Errors listing all of them; a file that cannot be read is a plain error.
+// names is resolved relative to name inside fsys and must stay inside fsys (no
+// absolute path). Any problem in the file comes back as *Errors listing all of them;
+// a file that cannot be read is a plain error.
 func Parse(fsys fs.FS, name string) (*Config, error) {
-	return parse(fsys, name, "")
-}
-
-// parse reads name inside fsys; dir, when set, is the OS directory of fsys, used
-// to name files in errors the way the user gave them.
-func parse(fsys fs.FS, name, dir string) (*Config, error) {
 	data, err := fs.ReadFile(fsys, name)
 	if err != nil {
 		return nil, fmt.Errorf("instrument: read config: %w", err)
 	}
-	p := &parser{fsys: fsys, dir: dir, file: name, loc: newLocator(string(data)), pinAt: map[string]pos{}}
+	p := newParser(name, data)
+	p.readTable = func(table string) (string, []byte, error) {
+		if path.IsAbs(table) || filepath.IsAbs(table) {
+			return table, nil, errors.New("an absolute path cannot be read here (the config is read from an embedded " +
+				"or virtual file system); want a path relative to the config's directory")
+		}
+		file := path.Join(path.Dir(name), table)
+		if !fs.ValidPath(file) {
+			return file, nil, errors.New("the path leaves the config's file system; want a path relative to the config's directory, inside it")
+		}
+		data, err := fs.ReadFile(fsys, file)
+		return file, data, err
+	}
+	return p.parse(data)
+}
+
+func newParser(name string, data []byte) *parser {
+	return &parser{file: name, loc: newLocator(string(data)), pinAt: map[string]pos{}}
+}
+
+// parse decodes and validates the config text.
+func (p *parser) parse(data []byte) (*Config, error) {
 	var raw rawFile
 	md, err := toml.Decode(string(data), &raw)
 	if err != nil {
-		p.c.add(pos{file: p.display(name), line: tomlErrLine(err)}, nil, "%s", tomlErrText(err))
+		p.c.add(pos{file: p.file, line: tomlErrLine(err)}, nil, "%s", tomlErrText(err))
 		return nil, p.c.err()
 	}
 	p.undecoded(md.Undecoded())
 	p.upperCase(md.Keys())
 	cfg := p.build(&raw)
 	if len(p.c.list) > 0 {
-		for _, fe := range p.c.list {
-			fe.File = p.display(fe.File)
-		}
 		return nil, p.c.err()
 	}
-	cfg.Path = name
+	cfg.Path = p.file
 	return cfg, nil
 }
 
-// parser holds the state of one Parse call.
+// parser holds the state of one Load or Parse call.
 type parser struct {
-	fsys fs.FS
-	dir  string // OS directory of fsys for messages, "" when unknown
-	file string
+	file string // the config as named to Load or Parse; every message names it so
 	loc  *locator
 	c    collector
+	// readTable reads a string table named in the config; file is its path as the
+	// messages name it. An error is about the path or the read.
+	readTable func(name string) (file string, data []byte, err error)
 
 	pinAt map[string]pos // where each string's exciter_pin was written, by string id
 }
@@ -204,17 +224,4 @@ func tomlErrText(err error) string {
 	}
 	msg := strings.TrimPrefix(err.Error(), "toml: ")
 	return "TOML structure: " + msg + "; want the layout of the example configs"
-}
-
-// display names a file of fsys as the user knows it.
-func (p *parser) display(file string) string {
-	if p.dir == "" {
-		return file
-	}
-	return filepath.Join(p.dir, file)
-}
-
-// sibling resolves a file named in the config relative to the config's directory.
-func (p *parser) sibling(name string) string {
-	return path.Join(path.Dir(p.file), name)
 }

@@ -2,6 +2,7 @@ package instrument
 
 import (
 	"fmt"
+	"path/filepath"
 	"regexp"
 	"sort"
 	"strings"
@@ -81,7 +82,7 @@ func (p *parser) material(name string, r rawMaterial, mats map[string]*tension.M
 		m.StrengthPa = 1e6 * p.c.optNumber(at("strength_mpa"), r.StrengthMPa, 0,
 			"a tensile strength in MPa from 10 to 5000", between(10, 5000))
 		m.StrengthTable = nil
-		m.Basis = fmt.Sprintf("%s (config file)", p.file)
+		m.Basis = fmt.Sprintf("%s (config file)", filepath.Base(p.file))
 	}
 	m.Basis = p.c.optString(at("basis"), r.Basis, m.Basis)
 	if len(p.c.list) > before {

@@ -54,7 +54,9 @@ func TestParse_Defaults(t *testing.T) {
 	if math.Abs(s.TargetHz-261.6256) > 1e-4 {
 		t.Errorf("C4 target = %.4f, want 261.6256", s.TargetHz)
 	}
-	// reference-values §1.2 E7: C4, 0.62 m, 1.00 mm plain wire, ρ 7850 → 648.9 N.
+	// reference-values §1.2 E7: C4, 0.62 m, 1.00 mm plain wire, ρ 7850 → 648.9 N at
+	// f0 = 261.6256 Hz. (The string tuned to C4 as a first partial has an f0 0.3 cents
+	// lower: TestParse_TargetIsFirstPartial.)
 	if tn := s.Phys.Tension(s.TargetHz); math.Abs(tn-648.9) > 0.05 {
 		t.Errorf("tension = %.2f N, want 648.9", tn)
 	}

@@ -139,9 +139,9 @@ func (p *parser) strings(raw *rawFile, in *Instrument) []String {
 
 func (p *parser) where(at pos) string {
 	if at.line > 0 {
-		return fmt.Sprintf("%s:%d", p.display(at.file), at.line)
+		return fmt.Sprintf("%s:%d", at.file, at.line)
 	}
-	return p.display(at.file)
+	return at.file
 }
 
 // buildString turns one row into a String; ok is false when it had errors.
@@ -267,20 +267,29 @@ func (p *parser) layer(r *row, mats map[string]*tension.Material, key, matName s
 	return l
 }
 
-// breakingCheck rejects a string whose target is at or above its breaking pitch.
+// breakingCheck rejects a string whose target is at or above its breaking pitch. The
+// target is a first partial (tension package doc, "Target pitch"), so the comparison
+// uses the ideal-string f0 that sounds it: f0 = √(f1² − K), and tension T(f0).
 func (p *parser) breakingCheck(r *row, s *String) bool {
 	if err := s.Phys.Validate(); err != nil {
 		p.c.add(r.at, nil, "%v", err)
 		return false
 	}
-	t := s.Phys.Tension(s.TargetHz)
+	c, ok := r.cells["note"]
+	if _, hasHz := r.cells["target"]; hasHz || !ok {
+		c = r.cells["target"]
+	}
+	f0, err := s.Phys.F0ForFirstPartial(s.TargetHz)
+	if err != nil {
+		p.c.add(c.at, c.v, "target %.2f Hz cannot be reached on this string: %v", s.TargetHz, err)
+		return false
+	}
+	t := s.Phys.Tension(f0)
 	if m := s.Phys.Margin(t); m >= 1 {
-		c, ok := r.cells["note"]
-		if _, hasHz := r.cells["target"]; hasHz || !ok {
-			c = r.cells["target"]
-		}
-		p.c.add(c.at, c.v, "target %.2f Hz is above the breaking pitch %.2f Hz of this string (tension %.0f N is %.0f %% of the %.0f N breaking load, %s); want a lower pitch, a longer or different string",
-			s.TargetHz, s.Phys.BreakingHz(), t, 100*m, s.Phys.BreakingLoad(), s.Phys.Core.Material.Basis)
+		brk := s.Phys.BreakingHz()
+		p.c.add(c.at, c.v, "target %.2f Hz is above the breaking pitch %.2f Hz of this string (first partials; ideal-string f0 %.2f Hz "+
+			"against %.2f Hz at breaking: tension %.0f N is %.0f %% of the %.0f N breaking load, %s); want a lower pitch, a longer or different string",
+			s.TargetHz, s.Phys.FirstPartialHz(brk), f0, brk, t, 100*m, s.Phys.BreakingLoad(), s.Phys.Core.Material.Basis)
 		return false
 	}
 	return true

@@ -62,11 +62,12 @@ func (r *Report) Flagged() []*String {
 	return out
 }
 
-// HighMargin reports whether any string went over the warning share of breaking load:
-// the report then leads with the safety caution.
+// HighMargin reports whether any string went over Limits.CautionMargin, the lower of
+// the config's warning share and tension.CautionFloor: the report then leads with the
+// safety caution (tension.Caution). A config may warn earlier, never later.
 func (r *Report) HighMargin() bool {
 	for _, s := range r.Strings {
-		if s.MaxMargin > r.Limits.MarginWarn {
+		if s.MaxMargin > r.Limits.CautionMargin {
 			return true
 		}
 	}
@@ -81,17 +82,4 @@ func orZero(x float64) float64 {
 		return math.MaxFloat64
 	}
 	return x
-}
-
-func medianOf(x []float64) float64 {
-	s := slices.Clone(x)
-	slices.Sort(s)
-	n := len(s)
-	if n == 0 {
-		return math.NaN()
-	}
-	if n%2 == 1 {
-		return s[n/2]
-	}
-	return (s[n/2-1] + s[n/2]) / 2
 }

@@ -2,6 +2,7 @@ package report
 
 import (
 	"cmp"
+	"fmt"
 	"math"
 	"slices"
 	"strings"
@@ -10,6 +11,7 @@ import (
 	"taut/monitor"
 	"taut/monitor/instrument"
 	"taut/monitor/settle"
+	"taut/monitor/tension"
 )
 
 // Options describe where the entries came from and how to judge them.
@@ -18,9 +20,10 @@ type Options struct {
 	JournalPath string             // shown in the report
 	ReadSummary string             // the journal reader's summary (bad and torn lines)
 	ReadClean   bool               // the reader skipped nothing
-	// Generated stamps the report; zero means the time of the last entry, which keeps
-	// a report of the same journal byte-for-byte the same.
-	Generated time.Time
+	// AsOf is the moment the report speaks for; zero means the time of the journal's
+	// last entry. The report is deliberately not stamped with the time it is written:
+	// the same journal then always gives byte-for-byte the same files.
+	AsOf time.Time
 }
 
 // Limits are the thresholds the report judges by (from the config's listen section,
@@ -30,6 +33,12 @@ type Limits struct {
 	ToleranceCents     float64 `json:"tolerance_cents"`       // default 3
 	MarginWarn         float64 `json:"margin_warn"`           // 0.70, trade figure (reference-values §4.1)
 	MarginAlarm        float64 `json:"margin_alarm"`          // 0.85
+	// CautionMargin is min(MarginWarn, tension.CautionFloor): above it the report
+	// leads with the safety caution. A config may warn earlier, never later.
+	CautionMargin float64 `json:"caution_margin"`
+	// ListenerRateWindowH is the listener's drift-rate window (listen.rate_window,
+	// default 2 h): its states come from a robust slope over this window.
+	ListenerRateWindowH float64 `json:"listener_rate_window_h"`
 }
 
 // Report is everything the morning report shows, computed once from the entries.
@@ -39,7 +48,7 @@ type Report struct {
 	JournalPath string
 	ReadSummary string
 	ReadClean   bool
-	Generated   time.Time
+	AsOf        time.Time // the moment the report speaks for: the journal's last entry unless set
 	Origin      time.Time // time of the first reading: hour 0 of every plot
 	End         time.Time // time of the last reading
 	Limits      Limits
@@ -49,6 +58,10 @@ type Report struct {
 	Load        []LoadPoint
 	Bases       []string // strength bases of the margins shown
 	Entries     int
+	// JournalStrings counts the strings the journal has entries for; NotInConfig
+	// lists those the config does not know, in the order they were first heard.
+	JournalStrings int
+	NotInConfig    []string
 }
 
 // Reading is one KindReading entry with its place on the report's time axis.
@@ -88,9 +101,9 @@ func Build(entries []monitor.Entry, opts Options) *Report {
 	}
 	clock := newRunClock(entries)
 	r.Origin, r.End = clock.origin, clock.end
-	r.Generated = opts.Generated
-	if r.Generated.IsZero() {
-		r.Generated = clock.last
+	r.AsOf = opts.AsOf
+	if r.AsOf.IsZero() {
+		r.AsOf = clock.last
 	}
 	byID := map[string]*String{}
 	for _, e := range entries {
@@ -101,14 +114,15 @@ func Build(entries []monitor.Entry, opts Options) *Report {
 			str := r.stringFor(byID, e.String)
 			str.add(e, h)
 		case monitor.KindState:
-			r.stringFor(byID, e.String).states = append(r.stringFor(byID, e.String).states, e)
+			str := r.stringFor(byID, e.String)
+			str.states = append(str.states, stateSeen{entry: e, hours: h})
 		case monitor.KindGap, monitor.KindClock, monitor.KindFault, monitor.KindStart, monitor.KindStop:
 			r.Night = append(r.Night, Happening{Time: e.Time, Hours: h, Kind: e.Kind, Reason: e.Reason, Detail: e.Detail})
 		}
 	}
 	r.placeStrings(opts.Config, byID)
 	for _, s := range r.Strings {
-		s.analyse(r.Limits, opts.Config != nil)
+		s.analyse(r.Limits, opts.Config != nil, r.clockText)
 	}
 	r.Load = totalLoad(r.Readings)
 	r.Bases = bases(r.Strings)
@@ -117,19 +131,21 @@ func Build(entries []monitor.Entry, opts Options) *Report {
 }
 
 func limitsOf(cfg *instrument.Config) Limits {
-	l := Limits{SteadyCentsPerHour: 1, ToleranceCents: 3, MarginWarn: 0.70, MarginAlarm: 0.85}
-	if cfg == nil {
-		return l
-	}
-	set := func(dst *float64, v float64) {
-		if v > 0 {
-			*dst = v
+	l := Limits{SteadyCentsPerHour: 1, ToleranceCents: 3, MarginWarn: 0.70, MarginAlarm: 0.85,
+		ListenerRateWindowH: 2}
+	if cfg != nil {
+		set := func(dst *float64, v float64) {
+			if v > 0 {
+				*dst = v
+			}
 		}
+		set(&l.SteadyCentsPerHour, cfg.Listen.SteadyCentsPerHour)
+		set(&l.ToleranceCents, cfg.Listen.ToleranceCents)
+		set(&l.MarginWarn, cfg.Listen.MarginWarn)
+		set(&l.MarginAlarm, cfg.Listen.MarginAlarm)
+		set(&l.ListenerRateWindowH, cfg.Listen.RateWindow.Hours())
 	}
-	set(&l.SteadyCentsPerHour, cfg.Listen.SteadyCentsPerHour)
-	set(&l.ToleranceCents, cfg.Listen.ToleranceCents)
-	set(&l.MarginWarn, cfg.Listen.MarginWarn)
-	set(&l.MarginAlarm, cfg.Listen.MarginAlarm)
+	l.CautionMargin = math.Min(l.MarginWarn, tension.CautionFloor)
 	return l
 }
 
@@ -145,7 +161,15 @@ func (r *Report) stringFor(byID map[string]*String, id string) *String {
 // placeStrings orders the strings: the config's scale order (strings never heard
 // are listed too, as quiet), then any string the config does not know. Without a
 // config, by median pitch, lowest first, or by first appearance when no pitch is known.
+// It also counts the journal's strings and notes those the config does not know.
 func (r *Report) placeStrings(cfg *instrument.Config, byID map[string]*String) {
+	var heard []*String
+	for id, s := range byID {
+		if id != "" {
+			heard = append(heard, s)
+		}
+	}
+	r.JournalStrings = len(heard)
 	seen := map[string]bool{}
 	if cfg != nil {
 		for i := range cfg.Instrument.Strings {
@@ -169,6 +193,49 @@ func (r *Report) placeStrings(cfg *instrument.Config, byID map[string]*String) {
 		return cmp.Compare(a.firstSeen, b.firstSeen)
 	})
 	r.Strings = append(r.Strings, rest...)
+	if cfg == nil {
+		return
+	}
+	slices.SortFunc(heard, func(a, b *String) int { return cmp.Compare(a.firstSeen, b.firstSeen) })
+	for _, s := range heard {
+		if !seen[s.ID] {
+			r.NotInConfig = append(r.NotInConfig, s.ID)
+		}
+	}
+}
+
+// configMismatchShare is the share of the journal's strings a config may not know
+// before the report warns that it is probably the wrong config: beyond it, targets,
+// thresholds and advice are likely wrong for most strings.
+const configMismatchShare = 0.25
+
+// ConfigWarning returns a warning for people when more than a quarter of the
+// journal's strings are not in the config (probably the wrong --config), or "".
+func (r *Report) ConfigWarning() string {
+	n := len(r.NotInConfig) // only ever set when a config was given
+	if r.JournalStrings == 0 || float64(n) <= configMismatchShare*float64(r.JournalStrings) {
+		return ""
+	}
+	names := strings.Join(r.NotInConfig[:min(n, 5)], ", ")
+	if n > 5 {
+		names += fmt.Sprintf(" and %d more", n-5)
+	}
+	cfg := r.ConfigPath
+	if cfg == "" {
+		cfg = "the config"
+	}
+	return fmt.Sprintf("%s does not know %d of the %d strings in the journal (%.0f %%): %s. "+
+		"Their targets, string data, thresholds and advice are missing or wrong; is it the config "+
+		"of this instrument?", cfg, n, r.JournalStrings, 100*float64(n)/float64(r.JournalStrings), names)
+}
+
+// clockText places a time on the report's axis for people: hours since the first
+// reading and the clock time, e.g. "hour 6.5 (01:30)".
+func (r *Report) clockText(hours float64) string {
+	if !finite(hours) {
+		return "an unknown time"
+	}
+	return fmt.Sprintf("hour %.1f (%s)", hours, r.Origin.Add(time.Duration(hours*float64(time.Hour))).Format("15:04"))
 }
 
 // runClock maps entries onto one time axis from each run's monotonic clock.

@@ -7,13 +7,6 @@ import (
 	"time"
 )
 
-// Caution is shown wherever the report shows high margins.
-const Caution = "Strings under tension store a lot of energy; a breaking string can injure eyes and hands. " +
-	"Wear eye protection when bringing strings up to pitch, raise pitch in stages, and follow the " +
-	"instrument maker's specification and local professional practice. The margins are estimates from " +
-	"the string data given to taut and depend on the strength figure used (its basis is named beside " +
-	"them): a guide, never a guarantee, and no substitute for a qualified technician's judgement."
-
 var csvHeader = []string{"seq", "time", "hours", "run", "string", "f0_hz", "fundamental_hz", "cents",
 	"inharmonicity", "tension_n", "margin", "rate_cents_per_hour", "clarity", "partials", "state", "reason"}
 

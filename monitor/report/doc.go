@@ -29,9 +29,34 @@
 // flags, then higher margin), then off target (furthest first), then settling (longest
 // to steady first).
 //
+// # Listener and fit
+//
+// The state of a string is the listener's, from its last entry ("at dawn"): it judges
+// a robust slope over its rate window (listen.rate_window, 2 h by default) and its last
+// reading. The report's own figures come from the fitted settling model: the slope and
+// pitch of the model now. Both use the same thresholds (shown in the table headers),
+// and near a threshold they can disagree; a string either calls off-target or settling
+// is ranked so, and its reasons say whose verdict it is. When the listener calls a
+// string off-target that the fit puts inside the tolerance, the next pull-up is worked
+// out from the listener's last reading instead of the fit's pitch.
+//
+// # Times and wording
+//
+// Times of events are written as hours since the first reading and the clock time on
+// the report's axis ("hour 6.5 (01:30)"). The report speaks "as of" the journal's last
+// entry and is not stamped with the time it is written, so a journal always gives the
+// same files.
+//
+// # Config check
+//
+// When more than a quarter of the journal's strings are not in the given config, it is
+// probably the wrong config (targets, thresholds and advice would all be off): the
+// report says so in a banner, in summary.json (config_warning) and on the terminal.
+//
 // # Safety
 //
-// Whenever a margin is over the warning share the page leads with the caution and the
-// strength basis of the margins; every margin is a guide that depends on the strength
-// figure used, never a guarantee.
+// Whenever a margin is over min(warning share, tension.CautionFloor) — a config may
+// warn earlier, never later — the page leads with tension.Caution and the strength
+// basis of the margins; every margin is a guide that depends on the strength figure
+// used, never a guarantee.
 package report

@@ -6,10 +6,34 @@ import (
 	"html/template"
 	"io"
 	"math"
+	"strconv"
 	"strings"
 
 	"taut/monitor/settle"
+	"taut/monitor/tension"
 )
+
+// header holds the column titles the page's table and the terminal table share, so
+// both say whose figure each column is and which threshold was used.
+type header struct {
+	State, ListenerRate, Cents, Rate, Steady, Ahead, Margin, PullUp string
+}
+
+func headerOf(l Limits) header {
+	return header{
+		State:        "state at dawn (listener)",
+		ListenerRate: fmt.Sprintf("listener ¢/h (%s slope)", windowText(l)),
+		Cents:        "fit: cents now",
+		Rate:         "fit: ¢/h now (± SE)",
+		Steady:       fmt.Sprintf("fit: steady (|¢/h| < %s) in", trimNum(l.SteadyCentsPerHour)),
+		Ahead:        "fit: at +24 h",
+		Margin:       "margin",
+		PullUp:       "next pull-up",
+	}
+}
+
+// trimNum writes a threshold as given: 1.5, 3, 0.25.
+func trimNum(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
 
 //go:embed report.html.tmpl
 var pageTemplate string
@@ -24,7 +48,9 @@ var page = template.Must(template.New("report").Funcs(template.FuncMap{
 // view is what the template sees: text already formatted, plots already drawn.
 type view struct {
 	Title, Instrument, Journal, Config string
-	Period, Generated                  string
+	Period, AsOf                       string
+	ConfigWarning                      string
+	Head                               header
 	ReadSummary                        string
 	ReadClean                          bool
 	CSS                                template.CSS
@@ -50,7 +76,8 @@ type row struct {
 	Class                                 string // attention label
 	Flags, Warnings                       string
 	Reasons                               []string
-	Cents, Rate, Steady, Ahead            string
+	ListenerRate                          string // the listener's robust slope at its last reading
+	Cents, Rate, Steady, Ahead            string // the fit's
 	Tension, Margin, Model, PullUp, Basis string
 	Share                                 string // share of the raise expected back, e.g. "30 %"
 }
@@ -67,8 +94,9 @@ func (r *Report) WriteHTML(w io.Writer) error {
 		Title: "Settling report", Instrument: r.Instrument, Journal: r.JournalPath, Config: r.ConfigPath,
 		Period: fmt.Sprintf("%s to %s (%.1f h)", r.Origin.Format("2006-01-02 15:04 MST"),
 			r.End.Format("2006-01-02 15:04 MST"), r.End.Sub(r.Origin).Hours()),
-		Generated: r.Generated.Format("2006-01-02 15:04 MST"), ReadSummary: r.ReadSummary, ReadClean: r.ReadClean,
-		CSS: template.CSS(pageCSS), Caution: Caution, HighMargin: r.HighMargin(), Bases: r.Bases, Limits: r.Limits,
+		AsOf: r.AsOf.Format("2006-01-02 15:04 MST"), ConfigWarning: r.ConfigWarning(), Head: headerOf(r.Limits),
+		ReadSummary: r.ReadSummary, ReadClean: r.ReadClean,
+		CSS: template.CSS(pageCSS), Caution: tension.Caution, HighMargin: r.HighMargin(), Bases: r.Bases, Limits: r.Limits,
 		CentsPlot: template.HTML(r.centsPlot()), MarginPlot: template.HTML(r.marginPlot()),
 		LoadPlot: template.HTML(r.loadPlot()), Flagged: len(r.Flagged()), Strings: len(r.Strings),
 		Readings: len(r.Readings),
@@ -89,7 +117,7 @@ func (r *Report) WriteHTML(w io.Writer) error {
 		}
 	}
 	for _, h := range r.Night {
-		line := fmt.Sprintf("%s (hour %.1f): %s", h.Time.Format("15:04:05"), h.Hours, h.Kind)
+		line := fmt.Sprintf("%s: %s", r.clockText(h.Hours), h.Kind)
 		if h.Reason != "" {
 			line += " — " + h.Reason
 		}
@@ -109,8 +137,11 @@ func rowOf(s *String) row {
 		Rank: s.Rank, ID: s.ID, Note: s.Note, Section: s.Section, State: s.State.String(),
 		StateClass: "st-" + strings.ReplaceAll(s.State.String(), "-", ""), Class: classNames[s.Class],
 		Flags: strings.Join(s.Flags, ", "), Warnings: strings.Join(s.Warnings, ", "), Reasons: s.Reasons,
-		Cents: "—", Rate: "—", Steady: "—", Ahead: "—", Tension: "—", Margin: "—", Model: "—", PullUp: "—",
-		Basis: s.Basis,
+		ListenerRate: "—", Cents: "—", Rate: "—", Steady: "—", Ahead: "—", Tension: "—", Margin: "—", Model: "—",
+		PullUp: "—", Basis: s.Basis,
+	}
+	if s.Readings > 0 && finite(s.ListenerRate) {
+		r.ListenerRate = fmt.Sprintf("%+.2f", s.ListenerRate)
 	}
 	if s.Note != s.ID {
 		r.OtherNote = s.Note
@@ -146,6 +177,12 @@ func rowOf(s *String) row {
 	}
 	r.Model = string(an.Fit.Model)
 	r.PullUp = pullUpText(an)
+	switch {
+	case strings.HasPrefix(s.PullUpNote, "none"):
+		r.PullUp += " (see reasons)"
+	case s.PullUpNote != "":
+		r.PullUp += " (from last reading)"
+	}
 	if g := an.Suggest; g.RaiseCents > 0 && g.Share > 0 {
 		r.Share = fmt.Sprintf("%.0f %%", 100*g.Share)
 	}

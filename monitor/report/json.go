@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"taut/monitor/settle"
+	"taut/monitor/tension"
 )
 
 // summaryFile is summary.json. Numbers are rounded to what the measurement supports;
@@ -16,7 +17,9 @@ type summaryFile struct {
 	Instrument  string          `json:"instrument,omitempty"`
 	Config      string          `json:"config,omitempty"`
 	Journal     string          `json:"journal"`
-	Generated   time.Time       `json:"generated"`
+	AsOf        time.Time       `json:"as_of"` // the journal's last entry, not the time of writing
+	ConfigWarn  string          `json:"config_warning,omitempty"`
+	NotInConfig []string        `json:"not_in_config,omitempty"`
 	First       time.Time       `json:"first_reading"`
 	Last        time.Time       `json:"last_reading"`
 	Limits      Limits          `json:"limits"`
@@ -35,8 +38,11 @@ type stringSummary struct {
 	Note              string        `json:"note,omitempty"`
 	Section           string        `json:"section,omitempty"`
 	TargetHz          *float64      `json:"target_hz"`
-	State             string        `json:"state"`
+	State             string        `json:"state"` // the listener's, at its last entry
 	StateReason       string        `json:"state_reason,omitempty"`
+	LastCents         *float64      `json:"listener_cents_last"`
+	ListenerRate      *float64      `json:"listener_rate_cents_per_hour"`
+	FitSteady         bool          `json:"fit_steady"`
 	Flags             []string      `json:"flags"`
 	Warnings          []string      `json:"warnings"`
 	Reasons           []string      `json:"reasons"`
@@ -62,6 +68,7 @@ type stringSummary struct {
 	SuggestedAim      *float64      `json:"suggested_aim_cents"`
 	FallBackShare     *float64      `json:"fall_back_share"`
 	FallBackBasis     string        `json:"fall_back_basis,omitempty"`
+	PullUpNote        string        `json:"pull_up_note,omitempty"`
 	InharmonicityFrom *float64      `json:"inharmonicity_early"`
 	InharmonicityTo   *float64      `json:"inharmonicity_late"`
 	Segments          []segmentOut  `json:"segments"`
@@ -108,7 +115,8 @@ func num(x float64, decimals int) *float64 {
 // WriteJSON writes summary.json.
 func (r *Report) WriteJSON(w io.Writer) error {
 	f := summaryFile{
-		Instrument: r.Instrument, Config: r.ConfigPath, Journal: r.JournalPath, Generated: r.Generated,
+		Instrument: r.Instrument, Config: r.ConfigPath, Journal: r.JournalPath, AsOf: r.AsOf,
+		ConfigWarn: r.ConfigWarning(), NotInConfig: r.NotInConfig,
 		First: r.Origin, Last: r.End, Limits: r.Limits, Readings: len(r.Readings), ReadClean: r.ReadClean,
 		Flagged: []string{}, Attention: []string{}, MarginBasis: r.Bases,
 	}
@@ -125,7 +133,7 @@ func (r *Report) WriteJSON(w io.Writer) error {
 		f.TotalLoadN = num(r.Load[n-1].TotalN, 1)
 	}
 	if r.HighMargin() {
-		f.Caution = Caution
+		f.Caution = tension.Caution
 	}
 	for _, s := range r.Strings {
 		f.Strings = append(f.Strings, summarise(s))
@@ -146,9 +154,13 @@ func summarise(s *String) stringSummary {
 		BreakingN: positive(s.BreakingN, 1), InharmonicityFrom: num(s.BEarly, 7), InharmonicityTo: num(s.BLate, 7),
 		FitParams: []fitParam{}, PullUps: []eventOut{}, Steps: []eventOut{}, Segments: []segmentOut{},
 	}
+	if s.Readings > 0 {
+		out.LastCents, out.ListenerRate = num(s.LastCents, 2), num(s.ListenerRate, 3)
+	}
 	if !s.Analysed {
 		return out
 	}
+	out.FitSteady, out.PullUpNote = an.Steady, s.PullUpNote
 	out.CentsNow, out.CentsNowSE = num(an.CentsNow, 2), num(an.CentsNowSE, 2)
 	out.Rate, out.RateSE = num(an.RateNow, 3), num(an.RateSE, 3)
 	out.HoursToSteady, out.SteadyNote = num(an.HoursToSteady, 1), steadyNote(an)

@@ -1,6 +1,7 @@
 package report
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"slices"
@@ -47,16 +48,24 @@ type String struct {
 	Basis             string  // strength basis of the margin
 
 	Readings    int
-	State       monitor.State // after the last entry about this string
+	State       monitor.State // the listener's, after the last entry about this string ("at dawn")
 	StateReason string
-	Points      []settle.Point
-	Analysis    settle.Analysis
-	Analysed    bool
-	TensionN    float64 // latest reading
-	Margin      float64 // latest reading
-	MaxMargin   float64 // highest over the night
-	BEarly      float64 // median fitted B of the first quarter of readings
-	BLate       float64 // median fitted B of the last quarter
+	// LastCents and ListenerRate are the listener's last reading and its drift rate
+	// then: a robust slope over its rate window, not the fit's rate (NaN before the
+	// listener had one).
+	LastCents    float64
+	ListenerRate float64
+	// PullUpNote says why the next pull-up is not the fit's plain suggestion (the
+	// listener's verdict differs from the fit's), or "".
+	PullUpNote string
+	Points     []settle.Point
+	Analysis   settle.Analysis
+	Analysed   bool
+	TensionN   float64 // latest reading
+	Margin     float64 // latest reading
+	MaxMargin  float64 // highest over the night
+	BEarly     float64 // median fitted B of the first quarter of readings
+	BLate      float64 // median fitted B of the last quarter
 
 	Flags    []string
 	Warnings []string
@@ -64,7 +73,7 @@ type String struct {
 	Class    int      // attention class
 	Rank     int      // 1 = look at first
 
-	states    []monitor.Entry
+	states    []stateSeen
 	alarms    map[string]alarmSeen
 	firstSeen int
 	hz        []float64
@@ -76,6 +85,15 @@ type alarmSeen struct {
 	hours float64
 	entry monitor.Entry
 }
+
+// stateSeen is a state change entry with its place on the report's time axis.
+type stateSeen struct {
+	entry monitor.Entry
+	hours float64
+}
+
+// at formats a time on the report's axis for people ("hour 6.5 (01:30)").
+type at func(hours float64) string
 
 func (s *String) setConfig(cs *instrument.String) {
 	s.InConfig = true
@@ -91,8 +109,10 @@ func (s *String) setConfig(cs *instrument.String) {
 func (s *String) add(e monitor.Entry, hours float64) {
 	s.Readings++
 	s.Points = append(s.Points, settle.Point{Hours: hours, Cents: e.Cents})
-	if e.F0Hz > 0 {
-		s.hz = append(s.hz, e.F0Hz)
+	// The string's pitch is its first partial's (what a tuner hears); older journals
+	// without it fall back to the fitted f0.
+	if hz := cmp.Or(e.FundamentalHz, e.F0Hz); hz > 0 {
+		s.hz = append(s.hz, hz)
 	}
 	s.bs = append(s.bs, e.Inharmonicity)
 	s.TensionN, s.Margin = e.TensionN, e.Margin
@@ -104,6 +124,12 @@ func (s *String) add(e monitor.Entry, hours float64) {
 func (s *String) noteState(e monitor.Entry, hours float64) {
 	if e.Seq >= s.lastSeq {
 		s.lastSeq, s.State, s.StateReason = e.Seq, e.State, e.Reason
+		if e.Kind == monitor.KindReading {
+			s.LastCents, s.ListenerRate = e.Cents, e.RateCentsHour
+			if e.Reason == "few-readings" {
+				s.ListenerRate = math.NaN()
+			}
+		}
 	}
 	if e.State != monitor.Alarm {
 		return
@@ -122,13 +148,13 @@ func (s *String) medianHz() float64 {
 	if len(s.hz) == 0 {
 		return math.Inf(1)
 	}
-	return medianOf(s.hz)
+	return settle.Median(s.hz)
 }
 
 // analyse runs the settling analysis and sets flags, warnings, reasons and class.
-func (s *String) analyse(l Limits, haveConfig bool) {
-	for _, e := range s.states {
-		s.noteState(e, math.NaN())
+func (s *String) analyse(l Limits, haveConfig bool, when at) {
+	for _, st := range s.states {
+		s.noteState(st.entry, st.hours)
 	}
 	if !s.InConfig && len(s.hz) > 0 {
 		s.Bass = s.medianHz() < 131 // below C3: treat as bass for the trade share
@@ -138,7 +164,7 @@ func (s *String) analyse(l Limits, haveConfig bool) {
 		s.Analysis, s.Analysed = an, err == nil
 	}
 	s.BEarly, s.BLate = quarterMedians(s.bs)
-	s.judge(l, haveConfig)
+	s.judge(l, haveConfig, when)
 }
 
 // quarterMedians returns the median of the first and of the last quarter of xs
@@ -154,7 +180,7 @@ func quarterMedians(xs []float64) (early, late float64) {
 		return math.NaN(), math.NaN()
 	}
 	q := max(len(v)/4, 1)
-	return medianOf(v[:q]), medianOf(v[len(v)-q:])
+	return settle.Median(v[:q]), settle.Median(v[len(v)-q:])
 }
 
 func (s *String) flag(f, reason string) {
@@ -172,10 +198,10 @@ func (s *String) warn(w, reason string) {
 // judge decides flags and warnings. Flags: margin over the alarm share (measured or
 // alarmed by the listener), a slip (a step found by the analysis or a jump alarm of
 // the listener), a partial shift (alarmed by the listener).
-func (s *String) judge(l Limits, haveConfig bool) {
+func (s *String) judge(l Limits, haveConfig bool, when at) {
 	s.judgeMargin(l)
-	s.judgeSlip()
-	s.judgePartials()
+	s.judgeSlip(when)
+	s.judgePartials(when)
 	if haveConfig && !s.InConfig {
 		s.warn(WarnUnknown, "heard but not in the config: no target or string data")
 	}
@@ -203,11 +229,11 @@ func (s *String) judgeMargin(l Limits) {
 	}
 }
 
-func (s *String) judgeSlip() {
+func (s *String) judgeSlip(when at) {
 	var steps []string
 	for _, e := range s.Analysis.Events {
 		if e.Kind == settle.EventStep {
-			steps = append(steps, fmt.Sprintf("%.1f cents at hour %.1f", -e.Cents, e.Hours))
+			steps = append(steps, fmt.Sprintf("%.1f cents at %s", -e.Cents, when(e.Hours)))
 		}
 	}
 	j, jumped := s.alarms["jump"]
@@ -217,7 +243,7 @@ func (s *String) judgeSlip() {
 			" that creep does not explain: a slipped pin, loop or bearing point?")
 	case jumped:
 		s.flag(FlagSlip, fmt.Sprintf("the listener raised a jump alarm at %s (%.1f cents from target)",
-			j.entry.Time.Format("15:04"), j.entry.Cents))
+			when(j.hours), j.entry.Cents))
 	}
 	if slices.Contains(s.Flags, FlagSlip) {
 		s.slipSuggestion()
@@ -245,12 +271,12 @@ func (s *String) slipSuggestion() {
 		"(no fall-back share: a slip is not stretch)"
 }
 
-func (s *String) judgePartials() {
+func (s *String) judgePartials(when at) {
 	p, ok := s.alarms["partials"]
 	if !ok {
 		return
 	}
-	msg := fmt.Sprintf("partials shifted (listener alarm at %s)", p.entry.Time.Format("15:04"))
+	msg := fmt.Sprintf("partials shifted (listener alarm at %s)", when(p.hours))
 	if finite(s.BEarly) && finite(s.BLate) && s.BEarly > 0 {
 		msg += fmt.Sprintf(": inharmonicity B went from %.3g to %.3g (%+.0f %%)", s.BEarly, s.BLate,
 			100*(s.BLate/s.BEarly-1))
@@ -258,33 +284,47 @@ func (s *String) judgePartials() {
 	s.flag(FlagPartials, msg+"; a loosening winding or a loose bridge pin?")
 }
 
-// judgePitch sets the off-target and settling warnings and the attention class.
+// judgePitch sets the off-target and settling warnings and the attention class. The
+// fit and the listener may disagree near a threshold (the fit's rate is the model's
+// slope now, the listener's a robust slope over its window; the fit's pitch is the
+// model's, the listener's its last reading): a string either calls off-target or
+// settling is treated so, and the reason says whose verdict it is.
 func (s *String) judgePitch(l Limits) {
 	an := &s.Analysis
-	off := finite(an.CentsNow) && math.Abs(an.CentsNow) > l.ToleranceCents
-	if off {
-		s.warn(WarnOffTarget, fmt.Sprintf("%+.1f cents from target (tolerance ±%.0f)", an.CentsNow, l.ToleranceCents))
+	fitOff := finite(an.CentsNow) && math.Abs(an.CentsNow) > l.ToleranceCents
+	listenerOff := s.State == monitor.OffTarget
+	switch {
+	case fitOff:
+		s.warn(WarnOffTarget, fmt.Sprintf("%+.1f cents from target by the fit (tolerance ±%.0f)", an.CentsNow, l.ToleranceCents))
+	case listenerOff:
+		s.warn(WarnOffTarget, fmt.Sprintf("the listener calls it off-target: its last reading is %+.1f cents from target "+
+			"(tolerance ±%.0f), the fit puts it at %+.1f now", s.LastCents, l.ToleranceCents, an.CentsNow))
 	}
-	if !an.Steady {
-		s.warn(WarnSettling, settlingText(an))
+	listenerSettling := s.State == monitor.Settling
+	switch {
+	case !an.Steady:
+		s.warn(WarnSettling, settlingText(an, l)+s.listenerRateText(l))
+	case listenerSettling:
+		s.warn(WarnSettling, s.listenerSettlingText(l))
 	}
+	s.reconcilePullUp(l)
 	switch {
 	case len(s.Flags) > 0:
 		s.Class = ClassAlarm
-	case off:
+	case fitOff || listenerOff:
 		s.Class = ClassPitch
-	case !an.Steady:
+	case !an.Steady || listenerSettling:
 		s.Class = ClassSettling
 	default:
 		s.Class = ClassFine
 	}
 }
 
-func settlingText(an *settle.Analysis) string {
+func settlingText(an *settle.Analysis, l Limits) string {
 	if !finite(an.RateNow) {
 		return "too few readings for a drift rate"
 	}
-	txt := fmt.Sprintf("still drifting %+.1f cents/hour", an.RateNow)
+	txt := fmt.Sprintf("the fit still drifts %+.1f cents/hour (steady under %.1f)", an.RateNow, l.SteadyCentsPerHour)
 	switch h := an.HoursToSteady; {
 	case math.IsInf(h, 1):
 		txt += "; not steady by its straight-line trend"
@@ -292,4 +332,63 @@ func settlingText(an *settle.Analysis) string {
 		txt += fmt.Sprintf("; steady in about %.0f h", math.Max(h, 1))
 	}
 	return txt
+}
+
+// listenerRateText adds the listener's rate when it is known.
+func (s *String) listenerRateText(l Limits) string {
+	if !finite(s.ListenerRate) {
+		return ""
+	}
+	return fmt.Sprintf("; the listener's %s slope: %+.2f cents/hour", windowText(l), s.ListenerRate)
+}
+
+// listenerSettlingText explains a string the listener still calls settling while the
+// fit's rate is already under the threshold.
+func (s *String) listenerSettlingText(l Limits) string {
+	var why string
+	switch s.StateReason {
+	case "pull-up":
+		why = "it was pulled up recently"
+	case "few-readings":
+		why = "it has too few readings for its drift rate yet"
+	default:
+		why = fmt.Sprintf("its %s slope, %+.2f cents/hour, is not under %.1f", windowText(l), s.ListenerRate,
+			l.SteadyCentsPerHour)
+	}
+	return fmt.Sprintf("the listener still calls it settling (%s); the fit's rate now, %+.2f cents/hour, is under "+
+		"the threshold, so it should be steady soon", why, s.Analysis.RateNow)
+}
+
+func windowText(l Limits) string {
+	return trimNum(l.ListenerRateWindowH) + "-hour"
+}
+
+// reconcilePullUp makes the next pull-up agree with the listener's off-target: the
+// fit suggests from its fitted pitch now, the listener judges its last reading. When
+// the listener calls the string off-target but the fitted pitch is inside the
+// tolerance, the suggestion is made from the last reading (same fall-back share), and
+// PullUpNote says so.
+func (s *String) reconcilePullUp(l Limits) {
+	g := &s.Analysis.Suggest
+	if s.State != monitor.OffTarget || !s.Analysed || g.RaiseCents != 0 || !finite(s.LastCents) {
+		return
+	}
+	c, fit := s.LastCents, s.Analysis.CentsNow
+	switch {
+	case c < -l.ToleranceCents:
+		g.RaiseCents = -c / (1 - g.Share)
+	case c > l.ToleranceCents:
+		g.RaiseCents = -c
+	default:
+		s.PullUpNote = fmt.Sprintf("none: the listener called it off-target, but its last reading (%+.1f cents) and "+
+			"the fit (%+.1f) are within this report's ±%.0f; the listener may have judged by another tolerance",
+			c, fit, l.ToleranceCents)
+		s.Reasons = append(s.Reasons, "next pull-up "+s.PullUpNote)
+		return
+	}
+	g.AimCents = c + g.RaiseCents
+	s.PullUpNote = fmt.Sprintf("from the listener's last reading (%+.1f cents, outside ±%.0f); the fit puts the string "+
+		"at %+.1f now, inside", c, l.ToleranceCents, fit)
+	g.Basis = s.PullUpNote + "; " + g.Basis
+	s.Reasons = append(s.Reasons, "next pull-up "+s.PullUpNote)
 }

@@ -87,7 +87,7 @@ func gapHours(pts []Point, o Options) float64 {
 	if len(dt) == 0 {
 		return 1
 	}
-	return math.Max(1, 3*median(dt))
+	return math.Max(1, 3*Median(dt))
 }
 
 // predict extrapolates the least-squares line through the last (up to) four points of
@@ -208,7 +208,9 @@ func split(pts []Point, ev []Event) []Segment {
 	return segs
 }
 
-func median(x []float64) float64 {
+// Median returns the median of x (the mean of the two middle values for an even
+// count), or NaN for an empty slice. x is not modified.
+func Median(x []float64) float64 {
 	s := slices.Clone(x)
 	slices.Sort(s)
 	n := len(s)
@@ -222,10 +224,10 @@ func median(x []float64) float64 {
 }
 
 func mad(x []float64) float64 {
-	m := median(x)
+	m := Median(x)
 	dev := make([]float64, len(x))
 	for i, v := range x {
 		dev[i] = math.Abs(v - m)
 	}
-	return median(dev)
+	return Median(dev)
 }

@@ -29,3 +29,12 @@ func Example() {
 	// now -10.3 cents, rate -0.47 cents/hour, steady: true
 	// +24 h: -15.7 cents; raise 14.8 cents (tune to +4.4), share 30 %
 }
+
+// Median is the robust centre used throughout the analysis (and by the report);
+// it leaves its input alone.
+func ExampleMedian() {
+	x := []float64{3, -1, 7, 2}
+	fmt.Println(settle.Median(x), settle.Median(x[:3]), math.IsNaN(settle.Median(nil)), x)
+	// Output:
+	// 2.5 3 true [3 -1 7 2]
+}

@@ -152,6 +152,6 @@ func historyShare(segs []Segment) (float64, string) {
 	if len(sh) == 0 {
 		return math.NaN(), ""
 	}
-	m := median(sh)
+	m := Median(sh)
 	return m, fmt.Sprintf("this string's history: %d pull-up(s), median fall-back %.0f %%", len(sh), 100*m)
 }

@@ -41,16 +41,16 @@ func theilSen(d segData) Fit {
 		cur: straight, originH: d.origin, AICc: math.NaN(), ResidualSD: math.NaN(),
 		StepCents: slices.Clone(d.stepEv), StepHours: d.stepHours()}
 	if len(slopes) == 0 { // all at one time: a level
-		f.Params = []float64{median(y), 0}
+		f.Params = []float64{Median(y), 0}
 		f.ParamSE = []float64{math.NaN(), math.NaN()}
 		return f
 	}
-	slope := median(slopes)
+	slope := Median(slopes)
 	res := make([]float64, len(y))
 	for i := range y {
 		res[i] = y[i] - slope*d.tau[i]
 	}
-	c0 := median(res)
+	c0 := Median(res)
 	f.Params = []float64{c0, slope}
 	for i := range res {
 		res[i] -= c0

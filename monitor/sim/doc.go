@@ -37,7 +37,9 @@
 // # Audio
 //
 // Each strike is a synth.Tone (stiff-string partials f_n = n·f0·√(1 + B·n²), Fletcher
-// 1964) at the string's simulated pitch and B, with decaying partials and a short
-// thump, followed by rendered silence; the time between rounds is skipped, not
+// 1964) of the string's simulated B whose FIRST PARTIAL sits at the simulated pitch:
+// a string's pitch and target are its first partial's (what a tuner hears), so the
+// tone's ideal f0 is f1/√(1 + B). Tension (and so the margin fault) uses that ideal
+// f0. The partials decay, there is a short thump, then rendered silence; the time between rounds is skipped, not
 // rendered, so a night costs only its strikes. All randomness is seeded.
 package sim

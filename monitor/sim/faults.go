@@ -47,7 +47,8 @@ func (n *Night) highestMargin(idx []int) int {
 	best, bestM := idx[0], -1.0
 	for _, i := range idx {
 		s := &n.Config.Instrument.Strings[i]
-		if m := s.Phys.Margin(s.Phys.Tension(s.TargetHz)); m > bestM {
+		f0, _ := atPitch(s)
+		if m := s.Phys.Margin(s.Phys.Tension(f0)); m > bestM {
 			best, bestM = i, m
 		}
 	}
@@ -66,7 +67,8 @@ func (n *Night) lightCore(i int) error {
 	orig := s.Phys.Core.DiameterM
 	margin := func(d float64) float64 {
 		s.Phys.Core.DiameterM = d
-		return s.Phys.Margin(s.Phys.Tension(s.TargetHz))
+		f0, _ := atPitch(s)
+		return s.Phys.Margin(s.Phys.Tension(f0))
 	}
 	lo, hi := 0.3*orig, orig
 	if margin(lo) < want {
@@ -83,7 +85,7 @@ func (n *Night) lightCore(i int) error {
 	}
 	m := margin(lo)
 	p := &n.Strings[i]
-	p.B0 = s.Phys.Inharmonicity(s.Phys.Tension(s.TargetHz))
+	_, p.B0 = atPitch(s)
 	n.Faults = append(n.Faults, Fault{Kind: FaultMargin, String: s.ID, AtH: 0, Detail: fmt.Sprintf(
 		"fitted with a %.2f mm core where the scale calls for %.2f mm: %.0f %% of its breaking load at pitch",
 		1000*lo, 1000*orig, 100*m)})

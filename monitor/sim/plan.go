@@ -70,9 +70,23 @@ func newPlan(s *instrument.String, i int, seed uint64) Plan {
 		slipAtH: math.Inf(1), bShiftH: math.Inf(1), bShift: 1,
 		levelDB: -2 * rng.Float64(),
 	}
-	p.B0 = s.Phys.Inharmonicity(s.Phys.Tension(s.TargetHz))
+	_, p.B0 = atPitch(s)
 	p.decayS = decayOf(s.TargetHz, wound, mat)
 	return p
+}
+
+// atPitch returns the ideal fundamental and the inharmonicity of string s when its
+// first partial sits on its target (the target is the first partial's pitch):
+// f0 = f1/√(1+B), with B = B(T(f0)) itself depending on f0, so the pair is found by
+// fixed-point iteration (B changes by a fraction of a per mille per step: a few
+// steps are exact to machine precision).
+func atPitch(s *instrument.String) (f0Hz, b float64) {
+	f0Hz = s.TargetHz
+	for range 8 {
+		b = s.Phys.Inharmonicity(s.Phys.Tension(f0Hz))
+		f0Hz = s.TargetHz / math.Sqrt(1+b)
+	}
+	return f0Hz, b
 }
 
 // decayOf is an invented but plausible decay time of the first partial: long for

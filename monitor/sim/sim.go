@@ -83,12 +83,13 @@ type Round struct {
 
 // Strike is one string sounded: its true pitch and the tone that is rendered.
 type Strike struct {
-	String string
-	Frame  int64   // sample frame of the onset
-	Cents  float64 // true pitch from target
-	F0Hz   float64
-	B      float64
-	Tone   synth.Tone
+	String  string
+	Frame   int64   // sample frame of the onset
+	Cents   float64 // true pitch from target: the first partial's, what a tuner hears
+	FirstHz float64 // first partial, TargetHz·2^(Cents/1200)
+	F0Hz    float64 // ideal fundamental FirstHz/√(1+B), the tone's F0Hz (and what tension uses)
+	B       float64
+	Tone    synth.Tone
 }
 
 // ToneFrames is the frames each strike rings.
@@ -188,10 +189,13 @@ func (n *Night) strike(i, r int, h float64, frame int64) Strike {
 	p := &n.Strings[i]
 	rng := rand.New(rand.NewPCG(n.Options.Seed, uint64(i)<<20|uint64(r)))
 	c := p.cents(h) + 0.12*rng.NormFloat64() // a little genuine wander between rounds
-	f0 := p.TargetHz * math.Exp2(c/1200)
+	// The pitch is the first partial's (the target rule: what a tuner hears); the
+	// stiff string's ideal f0 lies √(1+B) below it.
+	f1 := p.TargetHz * math.Exp2(c/1200)
 	b := p.bAt(h)
+	f0 := f1 / math.Sqrt(1+b)
 	tone := p.tone(f0, b, rng)
-	return Strike{String: p.ID, Frame: frame, Cents: c, F0Hz: f0, B: b, Tone: tone}
+	return Strike{String: p.ID, Frame: frame, Cents: c, FirstHz: f1, F0Hz: f0, B: b, Tone: tone}
 }
 
 // Describe says what was injected, for people.

@@ -37,7 +37,8 @@ func TestNewNight_Faults(t *testing.T) {
 	// margin: the light-core string runs 5 points over the config's alarm share.
 	m := kinds[FaultMargin]
 	s := stringOf(n.Config, m.String)
-	if got := s.Phys.Margin(s.Phys.Tension(s.TargetHz)); math.Abs(got-(cfg.Listen.MarginAlarm+0.05)) > 1e-6 {
+	f0, _ := atPitch(s) // tension from the ideal f0 under a first partial on target
+	if got := s.Phys.Margin(s.Phys.Tension(f0)); math.Abs(got-(cfg.Listen.MarginAlarm+0.05)) > 1e-6 {
 		t.Errorf("%s margin %.4f, want %.2f", m.String, got, cfg.Listen.MarginAlarm+0.05)
 	}
 	if orig := stringOf(cfg, m.String); orig.Phys.Core.DiameterM <= s.Phys.Core.DiameterM {
@@ -137,6 +138,36 @@ func TestNewNight_Seeded(t *testing.T) {
 	}
 	if sa.Cents == sc.Cents {
 		t.Error("different seeds gave the same pitch")
+	}
+}
+
+// TestStrike_FirstPartialOnPitch: the target rule — a string's pitch is its first
+// partial (what a tuner hears) — so every strike is rendered with its first partial
+// at the simulated pitch and the tone's ideal f0 √(1+B) below it (stiff string,
+// f_n = n·f0·√(1+B·n²), Fletcher 1964).
+func TestStrike_FirstPartialOnPitch(t *testing.T) {
+	n, err := NewNight(harp(t), Options{Hours: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	biggest := 0.0
+	for _, r := range n.Rounds {
+		for _, s := range r.Strikes {
+			p := n.plan(s.String)
+			want := p.TargetHz * math.Exp2(s.Cents/1200)
+			if got := s.Tone.PartialHz(1); math.Abs(got/want-1) > 1e-12 || math.Abs(s.FirstHz/want-1) > 1e-12 {
+				t.Fatalf("%s: first partial %.6f Hz (FirstHz %.6f), want %.6f", s.String, got, s.FirstHz, want)
+			}
+			if s.Tone.F0Hz != s.F0Hz || math.Abs(s.F0Hz*math.Sqrt(1+s.B)/want-1) > 1e-12 || s.Tone.B != s.B {
+				t.Fatalf("%s: tone f0 %.6f B %g, strike f0 %.6f B %g", s.String, s.Tone.F0Hz, s.Tone.B, s.F0Hz, s.B)
+			}
+			biggest = math.Max(biggest, 1200*math.Log2(s.FirstHz/s.F0Hz))
+		}
+	}
+	// The treble's nylon strings are stiff enough that f0 and the first partial differ
+	// by more than a cent: rendering f0 on pitch would read flat by that much.
+	if biggest < 1 {
+		t.Errorf("largest f1/f0 gap %.2f cents; the harp's top strings should exceed 1 cent", biggest)
 	}
 }
 

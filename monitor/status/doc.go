@@ -14,7 +14,8 @@
 //     along the scale with its state, cents from target, drift rate, tension and
 //     margin; the strings that need attention first; a "data is stale" banner when
 //     no reading arrived for Options.StaleAfter or the connection is lost; a
-//     caution naming the strength basis when a margin reaches the warn limit.
+//     caution (tension.Caution) naming the strength basis when a margin reaches the
+//     warn limit: the config's margin_warn, never above tension.CautionFloor (70 %).
 //     /?display=wall selects the large-type dark layout for permanent displays.
 //   - GET /api/strings — the [Snapshot] as JSON.
 //   - GET /api/events — server-sent events: "snapshot" (a [Snapshot]) on connect,
@@ -47,5 +48,7 @@
 // would, so [Server.ServeListener] registers [Server.StopStreams] with
 // RegisterOnShutdown; each stream also sets a write deadline before every write
 // so a stalled client cannot hold its handler, and a server-wide WriteTimeout
-// does not cut healthy streams.
+// does not cut healthy streams. [Server.Start] serves in the background and
+// [Server.Wait] blocks until that shutdown has finished, so a daemon can wait for it
+// before it closes its log and journal.
 package status

@@ -14,6 +14,8 @@ import (
 	"time"
 
 	"github.com/prometheus/client_golang/prometheus/promhttp"
+
+	"taut/monitor/tension"
 )
 
 //go:embed assets
@@ -57,11 +59,12 @@ type pageData struct {
 	Title    string
 	Display  string // "" or "wall"
 	Version  string
+	Caution  string   // tension.Caution, the one safety wording
 	Snapshot Snapshot // rendered at once, so the page is complete before its stream connects
 }
 
 func (s *Server) servePage(w http.ResponseWriter, r *http.Request) {
-	d := pageData{Title: s.cfg.Instrument.Name, Version: s.opts.Version, Snapshot: s.Snapshot()}
+	d := pageData{Title: s.cfg.Instrument.Name, Version: s.opts.Version, Caution: tension.Caution, Snapshot: s.Snapshot()}
 	if d.Title == "" {
 		d.Title = "taut"
 	}
@@ -160,6 +163,45 @@ func (s *Server) ServeListener(ctx context.Context, ln net.Listener) error {
 		err = errors.Join(err, serr)
 	}
 	return err
+}
+
+// Start serves on ln in the background, as ServeListener does, until ctx is done.
+// stopped, when not nil, is called with ServeListener's result once the server has
+// shut down and before Wait returns, so a caller can log it while its log is still
+// open. A Server starts once: a second Start returns an error and serves nothing.
+func (s *Server) Start(ctx context.Context, ln net.Listener, stopped func(error)) error {
+	s.runMu.Lock()
+	defer s.runMu.Unlock()
+	if s.done != nil {
+		return errors.New("status: server already started")
+	}
+	done := make(chan struct{})
+	s.done = done
+	go func() {
+		defer close(done)
+		err := s.ServeListener(ctx, ln)
+		if stopped != nil {
+			stopped(err)
+		}
+		s.runErr = err
+	}()
+	return nil
+}
+
+// Wait blocks until the server that Start began has shut down completely (every
+// handler returned, the listener closed, the stopped callback run) and returns
+// ServeListener's result. It returns nil at once when Start was never called. Call it
+// after cancelling Start's context, before closing what the server's callbacks use
+// (the log file, the journal behind Options.Stats).
+func (s *Server) Wait() error {
+	s.runMu.Lock()
+	done := s.done
+	s.runMu.Unlock()
+	if done == nil {
+		return nil
+	}
+	<-done
+	return s.runErr // written before done was closed
 }
 
 // Addr is the address ServeListener serves on (nil before it starts), e.g. to print

@@ -56,7 +56,7 @@ type Snapshot struct {
 	SinceReadingS float64        `json:"since_reading_s,omitempty"` // seconds since the latest reading arrived
 	Stale         bool           `json:"stale"`                     // no reading for StaleAfterS
 	StaleAfterS   float64        `json:"stale_after_s"`
-	MarginWarn    float64        `json:"margin_warn"`
+	MarginWarn    float64        `json:"margin_warn"` // high-margin badge and caution from here: the config's margin_warn, at most tension.CautionFloor
 	MarginAlarm   float64        `json:"margin_alarm"`
 	Unmatched     uint64         `json:"unmatched"` // unmatched notes since the server started
 	Strings       []StringStatus `json:"strings"`   // in scale order, as in the config

@@ -10,6 +10,7 @@ import (
 
 	"taut/monitor"
 	"taut/monitor/instrument"
+	"taut/monitor/tension"
 )
 
 // Defaults for the zero Options.
@@ -20,8 +21,7 @@ const (
 	DefaultClientBuffer = 256
 	DefaultWriteTimeout = 10 * time.Second
 	DefaultEvents       = 50
-	defaultMarginWarn   = 0.70 // same trade figures as the config defaults
-	defaultMarginAlarm  = 0.85
+	defaultMarginAlarm  = 0.85 // same trade figure as the config default
 )
 
 // Stats are the listener's counters that /metrics exports and /healthz judges
@@ -83,7 +83,7 @@ func setDefault[T int | time.Duration](v *T, def T) {
 type Server struct {
 	cfg         *instrument.Config
 	opts        Options
-	marginWarn  float64
+	marginWarn  float64 // the config's margin_warn, never above tension.CautionFloor
 	marginAlarm float64
 
 	mu          sync.Mutex
@@ -104,6 +104,10 @@ type Server struct {
 	stopOnce sync.Once
 	addr     atomic.Value // net.Addr once serving
 
+	runMu  sync.Mutex    // guards done
+	done   chan struct{} // made by Start, closed when its ServeListener has returned
+	runErr error         // ServeListener's result, set before done is closed
+
 	reg   *prometheus.Registry
 	fsync prometheus.Histogram
 }
@@ -116,7 +120,7 @@ func New(cfg *instrument.Config, opts Options) *Server {
 	s := &Server{
 		cfg:         cfg,
 		opts:        opts.withDefaults(),
-		marginWarn:  orDefault(cfg.Listen.MarginWarn, defaultMarginWarn),
+		marginWarn:  cautionAt(cfg.Listen.MarginWarn),
 		marginAlarm: orDefault(cfg.Listen.MarginAlarm, defaultMarginAlarm),
 		rows:        rows,
 		index:       index,
@@ -126,6 +130,16 @@ func New(cfg *instrument.Config, opts Options) *Server {
 	}
 	s.reg, s.fsync = s.newRegistry()
 	return s
+}
+
+// cautionAt is the margin from which the page shows the high-tension badge and the
+// caution: the config's margin_warn, but never above tension.CautionFloor (a config
+// may warn earlier, never later).
+func cautionAt(configWarn float64) float64 {
+	if configWarn > 0 {
+		return min(configWarn, tension.CautionFloor)
+	}
+	return tension.CautionFloor
 }
 
 func orDefault(v, def float64) float64 {

@@ -2,6 +2,7 @@ package status
 
 import (
 	"encoding/json"
+	"html"
 	"io"
 	"net/http"
 	"net/http/httptest"
@@ -13,6 +14,7 @@ import (
 
 	"taut/monitor"
 	"taut/monitor/instrument"
+	"taut/monitor/tension"
 )
 
 func TestServer_Publish(t *testing.T) {
@@ -104,7 +106,7 @@ func TestHandler_page(t *testing.T) {
 		wantBody []string
 		notBody  []string
 	}{
-		{"/", []string{"<title>Workshop upright, tenor (demo) · taut</title>", `<html lang="en">`, `href="/?display=wall"`, "taut v1.2.3", "Caution: high tension", "maker's specification and local professional practice"}, []string{"display-wall"}},
+		{"/", []string{"<title>Workshop upright, tenor (demo) · taut</title>", `<html lang="en">`, `href="/?display=wall"`, "taut v1.2.3", "Caution: high tension", html.EscapeString(tension.Caution)}, []string{"display-wall"}},
 		{"/?display=wall", []string{`<html lang="en" class="display-wall">`, `href="/">normal view`}, nil},
 		{"/?display=<script>", []string{`<html lang="en">`}, []string{"<script>\""}},
 	}
@@ -257,5 +259,29 @@ func TestHandler_emptyLists(t *testing.T) {
 	b = body(t, get(t, New(&instrument.Config{}, Options{}).Handler(), "GET", "/api/strings"))
 	if !strings.Contains(b, `"strings": []`) {
 		t.Errorf("strings are not an empty list in %s", b)
+	}
+}
+
+// TestServer_cautionFloor: the page's high-margin badge and caution start at the
+// config's margin_warn, never later than tension.CautionFloor (70 %, reference-values
+// §4.1 trade figure): a config may warn earlier, never later.
+func TestServer_cautionFloor(t *testing.T) {
+	for _, c := range []struct {
+		name       string
+		configWarn float64
+		want       float64
+	}{
+		{"LateConfigCapped", 0.80, tension.CautionFloor},
+		{"EarlyConfigKept", 0.60, 0.60},
+		{"UnsetIsFloor", 0, tension.CautionFloor},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			cfg := testConfig()
+			cfg.Listen.MarginWarn, cfg.Listen.MarginAlarm = c.configWarn, 0.90
+			s := New(cfg, Options{})
+			if got := s.Snapshot().MarginWarn; got != c.want {
+				t.Errorf("snapshot margin_warn %g, want %g", got, c.want)
+			}
+		})
 	}
 }

@@ -7,6 +7,7 @@ import (
 	"net/http"
 	"net/http/httptest"
 	"slices"
+	"strings"
 	"sync"
 	"sync/atomic"
 	"testing"
@@ -30,29 +31,30 @@ var fiveIDs = []string{"C3", "C#3", "D3", "D#3", "E3"}
 
 // TestEvents_midNight: a client that connects while entries are being published
 // gets a snapshot and then exactly the later updates, without gaps, and ends with
-// the server's own state.
+// the server's own state. The publisher stays at most midNightWindow updates ahead of
+// the client, well inside the client's queue (DefaultClientBuffer), so a busy machine
+// that runs the client slowly cannot get it dropped as slow: the test depends on
+// counts, not on scheduling.
 func TestEvents_midNight(t *testing.T) {
-	s := New(testConfig(), Options{})
+	const total, connectBy, midNightWindow = 3000, 2000, 64
+	s := New(testConfig(), Options{ClientBuffer: DefaultClientBuffer})
 	ts := httptest.NewServer(s.Handler())
 	defer ts.Close()
 	defer s.StopStreams()
 
-	const total = 3000
-	published := make(chan struct{})
+	var seen atomic.Uint64 // the last rev the client has read; 0 until its snapshot
+	quit := make(chan struct{})
+	defer close(quit)
+	published := make(chan error, 1)
 	go func() {
-		defer close(published)
-		for i := range total {
-			s.Publish(nightEntry(fiveIDs, i))
-			if i%100 == 0 {
-				time.Sleep(time.Millisecond) // let the client connect somewhere in the middle
-			}
-		}
+		published <- publishPaced(s, total, connectBy, midNightWindow, &seen, quit)
 	}()
-	time.Sleep(5 * time.Millisecond)
+	waitFor(t, func() bool { return s.Snapshot().Rev >= 500 }, "the night under way")
 	r, snap, closeStream := openStream(t, ts.URL)
 	defer closeStream()
-	if snap.Rev == 0 || snap.Rev >= total {
-		t.Logf("snapshot at rev %d (not mid-night, the test still checks continuity)", snap.Rev)
+	seen.Store(snap.Rev)
+	if snap.Rev >= total {
+		t.Fatalf("snapshot at rev %d: the publisher did not wait for the client", snap.Rev)
 	}
 	rows := slices.Clone(snap.Strings)
 	index := map[string]int{}
@@ -73,9 +75,19 @@ func TestEvents_midNight(t *testing.T) {
 			t.Fatalf("seq %d after %d: an entry older than the snapshot", u.Seq, lastSeq)
 		}
 		rev, lastSeq = u.Rev, u.Seq
+		seen.Store(rev)
 		if u.String != nil {
 			rows[index[u.String.ID]] = *u.String
 		}
+	}
+	if err := <-published; err != nil {
+		t.Fatal(err)
+	}
+	s.mu.Lock()
+	dropped := s.dropped
+	s.mu.Unlock()
+	if dropped != 0 {
+		t.Errorf("%d clients dropped as slow; the paced client must never be", dropped)
 	}
 	<-published
 	final := s.Snapshot()
@@ -87,6 +99,29 @@ func TestEvents_midNight(t *testing.T) {
 		}
 	}
 	t.Logf("client joined at rev %d of %d and followed every later update", snap.Rev, total)
+}
+
+// publishPaced publishes total night entries. Until a client subscribes it runs
+// freely, but not past connectBy; once a client is subscribed it stays at most window
+// updates ahead of seen. It gives up (with an error) after a generous minute without
+// progress, or when quit is closed.
+func publishPaced(s *Server, total, connectBy int, window uint64, seen *atomic.Uint64, quit <-chan struct{}) error {
+	for i := range total {
+		stuck := time.Now().Add(time.Minute)
+		for (i >= connectBy && s.clientCount() == 0) || (s.clientCount() > 0 && uint64(i)-min(uint64(i), seen.Load()) > window) {
+			select {
+			case <-quit:
+				return fmt.Errorf("publisher stopped at entry %d", i)
+			default:
+			}
+			if time.Now().After(stuck) {
+				return fmt.Errorf("publisher waited a minute at entry %d for the client (it saw rev %d)", i, seen.Load())
+			}
+			time.Sleep(50 * time.Microsecond)
+		}
+		s.Publish(nightEntry(fiveIDs, i))
+	}
+	return nil
 }
 
 // stalledWriter is a ResponseWriter whose client never reads: Write blocks until
@@ -149,6 +184,12 @@ func TestEvents_slowClients(t *testing.T) {
 	}
 	waitFor(t, func() bool { return s.clientCount() == slow+fast }, "every client subscribed")
 
+	// Publish must never wait for a client: every stalled handler stays blocked in
+	// Write until release is closed, so all 10 000 publishes must finish before that.
+	// The watchdog only catches a hang (a Publish that waits), with a generous limit.
+	var releaseOnce sync.Once
+	releaseAll := func() { releaseOnce.Do(func() { close(release) }) }
+	watchdog := time.AfterFunc(2*time.Minute, releaseAll)
 	var spent time.Duration
 	took := make([]time.Duration, 0, total)
 	for i := range total {
@@ -169,6 +210,9 @@ func TestEvents_slowClients(t *testing.T) {
 			}, "fast clients caught up")
 		}
 	}
+	if !watchdog.Stop() {
+		t.Error("the stalled clients were released by the watchdog: Publish waited for them")
+	}
 	fastDone.Wait()
 	for i, err := range fastErr {
 		if err != nil {
@@ -181,14 +225,12 @@ func TestEvents_slowClients(t *testing.T) {
 	if dropped != slow {
 		t.Errorf("%d clients dropped, want the %d stalled ones", dropped, slow)
 	}
-	close(release)
+	releaseAll()
 	stalled.Wait()
 	slices.Sort(took)
+	// Durations are logged, not asserted: BenchmarkPublish50Clients measures the cost.
 	t.Logf("%d publishes with %d stalled and %d fast clients: total %v, mean %v, median %v, p99 %v, worst %v; %d stalled dropped",
 		total, slow, fast, spent, spent/total, took[total/2], took[total*99/100], took[total-1], dropped)
-	if mean := spent / total; mean > 5*time.Millisecond { // generous for -race on a loaded 2-core box; a blocked Publish never returns
-		t.Errorf("mean Publish %v: the stalled clients slow the monitor", mean)
-	}
 }
 
 func (s *Server) clientCount() int {
@@ -199,7 +241,7 @@ func (s *Server) clientCount() int {
 
 func waitFor(t testing.TB, cond func() bool, what string) {
 	t.Helper()
-	deadline := time.Now().Add(5 * time.Second)
+	deadline := time.Now().Add(30 * time.Second) // a hang detector, generous for -race on a loaded 2-core box
 	for !cond() {
 		if time.Now().After(deadline) {
 			t.Fatalf("timed out waiting: %s", what)
@@ -209,24 +251,47 @@ func waitFor(t testing.TB, cond func() bool, what string) {
 }
 
 // TestEvents_heartbeatAndWriteTimeout: comment heartbeats flow and the stream
-// outlives a server-wide WriteTimeout because each write sets its own deadline.
+// outlives a server-wide WriteTimeout because each write sets its own deadline. The
+// test reads heartbeats until three have come and twice the WriteTimeout has passed,
+// then expects an update on the same stream: it counts, it does not time.
 func TestEvents_heartbeatAndWriteTimeout(t *testing.T) {
-	s := New(testConfig(), Options{Heartbeat: 30 * time.Millisecond, WriteTimeout: time.Second})
+	const writeTimeout = 150 * time.Millisecond
+	s := New(testConfig(), Options{Heartbeat: 30 * time.Millisecond, WriteTimeout: 10 * time.Second})
 	ts := httptest.NewUnstartedServer(s.Handler())
-	ts.Config.WriteTimeout = 150 * time.Millisecond
+	ts.Config.WriteTimeout = writeTimeout
 	ts.Start()
 	defer ts.Close()
 	defer s.StopStreams()
 	r, _, closeStream := openStream(t, ts.URL)
 	defer closeStream()
-	time.Sleep(400 * time.Millisecond) // well past the server's WriteTimeout
+	opened := time.Now()
+	done := make(chan error, 1)
+	go func() {
+		for r.comments < 3 || time.Since(opened) < 2*writeTimeout {
+			line, err := r.r.ReadString('\n')
+			if err != nil {
+				done <- fmt.Errorf("after %d heartbeats: %w", r.comments, err)
+				return
+			}
+			if strings.HasPrefix(line, ":") {
+				r.comments++
+			}
+		}
+		done <- nil
+	}()
+	select {
+	case err := <-done:
+		if err != nil {
+			t.Fatal(err)
+		}
+	case <-time.After(time.Minute): // a hang detector only
+		closeStream()
+		t.Fatalf("no three heartbeats in a minute at a 30 ms interval (%v)", <-done)
+	}
 	s.Publish(readingEntry(1, "C3", monitor.Steady, 1))
 	ev, err := r.next()
 	if err != nil || ev.Event != "update" {
 		t.Fatalf("after the WriteTimeout: %+v %v", ev, err)
-	}
-	if r.comments < 2 { // about 13 expected; a loaded machine delays tickers
-		t.Errorf("%d heartbeats in 400 ms at a 30 ms interval", r.comments)
 	}
 }
 
@@ -250,23 +315,22 @@ func TestServeListener_shutdownWithOpenStreams(t *testing.T) {
 	}
 	start := time.Now()
 	cancel()
+	// A clean return (nil) means every stream ended before ShutdownTimeout: had one
+	// held its handler, Shutdown would have run out of time and reported it. The
+	// select only catches a hang.
 	select {
 	case err := <-done:
 		if err != nil {
-			t.Fatalf("ServeListener: %v", err)
+			t.Fatalf("ServeListener: %v (streams held the shutdown past %v)", err, ShutdownTimeout)
 		}
-	case <-time.After(ShutdownTimeout):
+	case <-time.After(ShutdownTimeout + time.Minute):
 		t.Fatal("shutdown hung on open event streams")
 	}
-	took := time.Since(start)
+	t.Logf("shutdown with 10 open streams took %v", time.Since(start))
 	for i, r := range streams {
 		if _, err := r.next(); err == nil {
 			t.Errorf("stream %d still open after shutdown", i)
 		}
-	}
-	t.Logf("shutdown with 10 open streams took %v", took)
-	if took > time.Second {
-		t.Errorf("shutdown took %v", took)
 	}
 	if resp, err := http.Get(url + "/api/events"); err == nil {
 		resp.Body.Close()

@@ -44,6 +44,25 @@
 // strings only the core's stiffness is counted, which makes B a lower bound
 // (reference-values §2.3).
 //
+// # Target pitch
+//
+// One rule for the whole project: a target pitch (a config's note or target_hz) is
+// the pitch of the first partial, the pitch a tuner hears and shows. Tension, margin,
+// B and the breaking comparison always use the ideal-string f0 = f1/√(1+B), never f1.
+// Reading a tuned string's f1 as f0 overstates its tension by the factor 1+B and
+// makes it seem flat of its target by 600·log2(1+B) cents: about 14 cents at a piano's
+// top C (reference-values §1.2 E6, B = 0.0162 from §2.2).
+//
+// B depends on the tension, so f0 is the root of f1 = f0·√(1+B(T(f0))). Putting
+// T = 4·L²·μ·f0² into Fletcher's B shows that B·f0² is the same at every tension,
+//
+//	K = B·f0² = π³·E·d⁴ / (256·L⁴·μ)
+//
+// so f1² = f0² + K and f0 = √(f1² − K) exactly (String.F0ForFirstPartial). √K is the
+// pitch of the bare core ringing as a hinged bar at zero tension; no first partial at
+// or below it can be reached by tuning. For a wound string B from the core alone is a
+// lower bound, so its f0 comes out a little high and its tension errs on the safe side.
+//
 // # Gauge from a measured B
 //
 // Putting T = π·ρ·d²·L²·f0² into B gives B = π²·(E/ρ)·d²/(64·L⁴·f0²) for plain wire,

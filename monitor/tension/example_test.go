@@ -2,6 +2,7 @@ package tension_test
 
 import (
 	"fmt"
+	"math"
 
 	"taut/monitor/tension"
 )
@@ -18,6 +19,24 @@ func ExampleString_Tension() {
 	// tension 776.5 N (79.2 kgf)
 	// breaking load 1097 N, margin 70.8 % (ASTM A228 minimum (as reproduced, see reference-values §3.1))
 	// B 0.0162, 2.99 semitones below breaking
+}
+
+// A target pitch is a first partial: a tuner reading C8 on the top string hears f1, and
+// the tension follows from the lower ideal f0 (reference-values §1.2 E6, §2.2).
+func ExampleString_F0ForFirstPartial() {
+	mw := tension.Builtin()["music_wire"]
+	s := &tension.String{LengthM: tension.MM(54.0), Core: tension.Layer{Material: mw, DiameterM: tension.MM(0.785)}}
+	f0, err := s.F0ForFirstPartial(4186.009) // C8 as a tuner shows it
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	t := s.Tension(f0)
+	fmt.Printf("f0 %.2f Hz, %.1f cents below the first partial\n", f0, 1200*math.Log2(4186.009/f0))
+	fmt.Printf("tension %.1f N, margin %.1f %%, B %.4f\n", t, 100*s.Margin(t), s.Inharmonicity(t))
+	// Output:
+	// f0 4151.86 Hz, 14.2 cents below the first partial
+	// tension 763.9 N, margin 69.7 %, B 0.0165
 }
 
 // A wound bass string: steel core and one copper layer (reference-values §2.3).

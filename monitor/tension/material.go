@@ -100,8 +100,8 @@ func Builtin() map[string]*Material {
 	return map[string]*Material{
 		"music_wire": {
 			Name: "music_wire",
-			// ρ 7850 kg/m³: reference-values §3.2 (makeitfrom 7.8, ODOP 7861; Young 1952
-			// E/ρ = 25.5e6 m²/s² gives E ≈ 200 GPa at 7850).
+			// ρ 7850 kg/m³: reference-values §3.2 (materials-data sheet 7.8 g/cm³,
+			// spring-design data 7861; Young 1952 E/ρ = 25.5e6 m²/s² gives E ≈ 200 GPa at 7850).
 			DensityKgM3: 7850,
 			YoungPa:     200e9, // reference-values §3.2: 200 GPa (190–207 across sources)
 			// Strength: ASTM A228 minimum against diameter, reference-values §3.1.
@@ -110,37 +110,37 @@ func Builtin() map[string]*Material {
 		},
 		"stainless": {
 			Name:        "stainless",
-			DensityKgM3: 7916,  // 302 stainless: ODOP 0.286 lb/in³, reference-values §3.2
-			YoungPa:     193e9, // ODOP 28e6 psi, reference-values §3.2
-			// The ASTM A313 table was not found; ODOP's interpolation anchors for 302 are
-			// 330 ksi at 0.010 in and 145 ksi at 0.400 in (reference-values §3.2).
+			DensityKgM3: 7916,  // 302 stainless: 0.286 lb/in³ (spring-design data, reference-values §3.2)
+			YoungPa:     193e9, // 28e6 psi (spring-design data, reference-values §3.2)
+			// The ASTM A313 table was not found; the open spring-design data's interpolation
+			// anchors for 302 are 330 ksi at 0.010 in and 145 ksi at 0.400 in (reference-values §3.2).
 			StrengthTable: inchKsiTable([][2]float64{{0.010, 330}, {0.400, 145}}),
-			Basis:         "ODOP anchors for 302 stainless, linear (not the ASTM A313 table)",
+			Basis:         "spring-design data anchors for 302 stainless, linear (not the ASTM A313 table; reference-values §3.2)",
 		},
 		"phosphor_bronze": {
 			Name:        "phosphor_bronze",
-			DensityKgM3: 8860,  // C51000: reference-values §3.2 (makeitfrom 8.8, ODOP 0.320 lb/in³)
-			YoungPa:     110e9, // makeitfrom C51000, reference-values §3.2 (ODOP uses 103)
+			DensityKgM3: 8860,  // C51000: reference-values §3.2 (materials-data sheet 8.8 g/cm³, spring-design data 0.320 lb/in³)
+			YoungPa:     110e9, // C51000 materials-data sheet, reference-values §3.2 (spring-design data use 103)
 			StrengthPa:  1000e6,
-			Basis:       "spring-temper wire ≈145 ksi at 0.010 in (ODOP, reference-values §3.2)",
+			Basis:       "spring-temper wire ≈145 ksi at 0.010 in (spring-design data, reference-values §3.2)",
 		},
 		"brass": {
 			Name:        "brass",
-			DensityKgM3: 8525,  // 70/30 spring brass: ODOP 0.308 lb/in³, reference-values §3.2
-			YoungPa:     110e9, // ODOP 16e6 psi, reference-values §3.2
+			DensityKgM3: 8525,  // 70/30 spring brass: 0.308 lb/in³ (spring-design data, reference-values §3.2)
+			YoungPa:     110e9, // 16e6 psi (spring-design data, reference-values §3.2)
 			StrengthPa:  900e6,
-			Basis:       "small spring wire ≈130 ksi (ODOP, reference-values §3.2)",
+			Basis:       "small spring wire ≈130 ksi (spring-design data, reference-values §3.2)",
 		},
 		"copper": {
 			Name:        "copper",
 			DensityKgM3: 8890,  // IEC 1913 standard value, Copper Development Association (reference-values §3.2)
-			YoungPa:     120e9, // makeitfrom C11600, reference-values §3.2 (117–130)
+			YoungPa:     120e9, // C11600 materials-data sheet, reference-values §3.2 (117–130)
 			StrengthPa:  220e6,
 			Basis:       "annealed copper ≈220 MPa (from memory, reference-values §3.2)",
 		},
 		"nylon": {
 			Name:        "nylon",
-			DensityKgM3: 1140, // nylon 6.6: Princeton MAE glossary 1.14 Mg/m³ (reference-values §3.2)
+			DensityKgM3: 1140, // nylon 6.6: 1.14 Mg/m³, reference-values §3.2 (bulk nylon 6.6 handbook values)
 			// Oriented harp monofilament is stiffer and much stronger than the bulk resin
 			// (1.6–3.8 GPa, 60–90 MPa). Both string figures below are from memory, low confidence.
 			YoungPa:    4e9,

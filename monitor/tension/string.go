@@ -114,6 +114,42 @@ func (s *String) FirstPartialHz(f0Hz float64) float64 {
 	return f0Hz * math.Sqrt(1+s.Inharmonicity(s.Tension(f0Hz)))
 }
 
+// stiffnessHz2 returns K = B·f0² in Hz², the same at every tension because Fletcher's
+// B = π³·E·d⁴/(64·T·L²) falls as 1/T and T = 4·L²·μ·f0² rises as f0²:
+//
+//	K = π³·E·d⁴ / (256·L⁴·μ)
+//
+// √K is the first partial of the core as a hinged bar with no tension at all.
+func (s *String) stiffnessHz2() float64 {
+	d, l := s.Core.DiameterM, s.LengthM
+	return math.Pow(math.Pi, 3) * s.Core.Material.YoungPa * d * d * d * d /
+		(256 * l * l * l * l * s.MassPerLength())
+}
+
+// F0ForFirstPartial returns the ideal-string fundamental f0 in Hz of the string
+// whose first partial sounds at f1Hz: the f0 that solves f1 = f0·√(1+B(T(f0))) with
+// Fletcher's B. A target pitch is a first partial (what a tuner hears); tension,
+// margin and B must be computed from this f0 (package doc, "Target pitch").
+//
+// B·f0² is the constant K of stiffnessHz2, so the equation is f1² = f0² + K and its
+// one positive root is f0 = √(f1² − K): exact, no iteration. It fails when f1 is not
+// above √K, the pitch the bare core rings at with no tension; no tension gives such
+// a first partial.
+func (s *String) F0ForFirstPartial(f1Hz float64) (float64, error) {
+	if !(f1Hz > 0) || math.IsInf(f1Hz, 0) {
+		return 0, errorf("first partial %g Hz: want a positive frequency", f1Hz)
+	}
+	k := s.stiffnessHz2()
+	if !(k >= 0) || math.IsInf(k, 0) {
+		return 0, errorf("stiffness of this string is not a number (%g Hz²): check its length, core and mass", k)
+	}
+	if f1Hz*f1Hz <= k {
+		return 0, errorf("first partial %.4g Hz is at or below %.4g Hz, the pitch of the bare core's stiffness "+
+			"at zero tension; want a higher pitch, a longer string or a thinner core", f1Hz, math.Sqrt(k))
+	}
+	return math.Sqrt(f1Hz*f1Hz - k), nil
+}
+
 // BreakingHz returns the ideal fundamental at which the tension reaches the
 // breaking load. For a plain string f·L = ½·√(σ/ρ) whatever the diameter
 // (reference-values §3.2).

@@ -51,7 +51,7 @@ func TestString_WorkedExamples(t *testing.T) {
 		near(t, "T", s.Tension(261.6), 785.6287488, tol)
 	})
 	t.Run("E5PianoWire", func(t *testing.T) {
-		// reference-values §1.2 E5 (homeworklib steel piano string problem): 49.4 in,
+		// reference-values §1.2 E5 (steel piano string textbook problem): 49.4 in,
 		// 0.0421 in, 123 Hz, 7.86 g/cm³ → 672.6 N = 151.2 lbf; 228 strings = 17.24 short tons.
 		s := plain(steel(7860), Inches(49.4), Inches(0.0421))
 		near(t, "mu", s.MassPerLength(), 7.05901414779376e-3, tol)
@@ -61,7 +61,7 @@ func TestString_WorkedExamples(t *testing.T) {
 		near(t, "228 strings, short tons", 228*Lbf.From(tn)/2000, 17.24, 0.001)
 	})
 	t.Run("E6TopC8", func(t *testing.T) {
-		// reference-values §1.2 E6 (pianotech list, 21 May 2000): C8, 54.0 mm, 0.785 mm,
+		// reference-values §1.2 E6 (trade figure from a technicians' mailing list, 2000): C8, 54.0 mm, 0.785 mm,
 		// ρ 7850 → 776.5 N = 79.2 kgf; reference-values §4.1: 70.8 % of the ASTM minimum.
 		s := plain(musicWire(t), MM(54.0), MM(0.785))
 		tn := s.Tension(4186.009)
