@@ -18,9 +18,10 @@
 //	}
 //
 // Analyze never makes a number up. Too few samples give ErrTooShort, a level below
-// Config.SilenceDB ErrSilence, 1 % or more of the samples at full scale ErrClipped, NaN,
-// infinite or absurd (beyond ±1000) samples ErrBadSample, and noise, or a tone whose
-// partial series continues outside the search range, ErrNoPitch.
+// Config.SilenceDB ErrSilence, flat tops at full scale on 1 % or more of the samples
+// ErrClipped (see Clipping), NaN, infinite or absurd (beyond ±1000) samples
+// ErrBadSample, and noise, or a tone whose partial series continues outside the search
+// range, ErrNoPitch.
 //
 // # Units
 //
@@ -104,16 +105,83 @@
 // found that lies in the partials' peaks: near 1 for a clean tone, lower with noise or
 // other sounds. Below 0.05 the result is ErrNoPitch.
 //
+// # Clipping
+//
+// A clean tone at full scale spends a few per cent of its samples within 0.1 % of its
+// peak, so the level alone does not tell clipping. Clipping shows as flat tops: runs
+// of samples stuck at the rail. A flat run is three or more consecutive samples at or
+// beyond ±0.98, each within 2⁻¹⁴ (two steps of a 16-bit converter) of the run's first.
+// It counts as clipping when it is
+//
+//   - longer than twice the flat of a full-scale sine at Config.MinHz, the slowest
+//     pitch searched: a sine stays within δ of its peak for sqrt(2δ)/(π·f) seconds,
+//     14 samples at 48 kHz for 25 Hz (28 at 96 kHz), which no unclipped tone in range
+//     exceeds; or
+//   - entered and left at a corner: the level changes by more than 16·2⁻¹⁴ over the two
+//     samples before the run and over the two after it. A smooth peak that is flat to
+//     2⁻¹⁴ for three samples has a curvature so small that it moves by at most 8·2⁻¹⁴
+//     over the next two; a clipped wave hits the rail at full speed, so this catches
+//     the short flat tops of clipped treble notes.
+//
+// Analyze reports ErrClipped when 1 % or more of the samples lie in such runs. A
+// full-scale sine, quantised to 16 bits (with or without dither) or not, is measured
+// at any pitch from A0 to C8 at 44.1 to 96 kHz; a tone driven three times over full
+// scale is rejected at all of them, and one 10 % over up to about 1 kHz at 48 kHz (above,
+// its flat tops are shorter than three samples). Clipping that was filtered or
+// resampled afterwards, so that its tops ripple, or that sits below 0.98 of full scale,
+// is not recognised.
+//
 // # Segmentation
 //
-// The OnsetDetector compares the power of each 5 ms block, of the signal and of its first
-// difference (which stresses the broadband hammer or pluck noise), with the loudest block
-// of the previous 50 ms (longer than one period at 25 Hz, so a low note's own waveform
-// does not look like a new onset). A rise of 6 dB above -60 dBFS starts a note; no second
-// onset is reported within 100 ms. Segments skips the 50 ms attack (AttackSkip) and ends
-// each window at the first of: WindowLen samples (what Analyze can use for the lowest
-// expected pitch), the next onset, the point where the level has fallen 35 dB below the
-// attack peak, or the end of the recording.
+// The OnsetDetector works on the input averaged in groups down to 11 to 22 kHz (just
+// the input below 22 kHz). Every 21 ms (half a frame) it takes the power spectrum of
+// the last 43 ms (a Hann window of 512 samples at 12 kHz) and its level in dB,
+// floored at −90 dB of a full-scale sine's peak. The spectral flux is the sum over the
+// bins of the rises, never the falls, of each bin over the loudest level it, or a
+// neighbouring bin, had in the frames 21 to 107 ms earlier: a new note's partials,
+// and the broadband noise of a strike or pluck, rise in bins where the ringing note
+// is quiet, whatever that note's level; a partial coming back from a beat's null or
+// gliding by a bin does not. A frame whose flux exceeds 60 dB plus twice the median
+// of the last 32 frames marks its 43 ms as holding a candidate onset.
+//
+// The candidate is then checked and placed on the level of 1.3 ms sub-blocks, of the
+// signal high-passed at 80 Hz (no offset) and of its first difference (which stresses
+// the strike's noise), taking in each test the band that rises more:
+//
+//   - the mean power over 40 ms (a period at 25 Hz, so a low note's own waveform is no
+//     rise) must exceed that over the 40 ms before by 1.8 dB somewhere in the frame;
+//   - the onset is the first sub-block, in the frame or up to 13 ms after it, whose
+//     power exceeds the loudest sub-block of the 40 ms before by at least half, in dB,
+//     the largest such jump there (a ringing note's waveform repeats and decays, so
+//     makes none), and within it the first sample whose step reaches a third of the
+//     largest;
+//   - after the attack, from 8 to 48 ms after the onset, the level must still be
+//     1 dB above the 40 ms before the onset (a click or a step on a ringing note is
+//     not) and within 16 dB of the attack's peak (a click, a knock or a step of the
+//     offset out of silence dies away faster than that);
+//   - the level must reach −60 dBFS, and no onset follows another within 100 ms.
+//
+// Only rises count, so a sound that stops, abruptly or not, starts nothing, and a
+// candidate that fails does not hide one that follows right after it (a hand damping
+// one string and plucking the next). A stream that starts with sound above −60 dBFS
+// has an onset at its first sample, noise included. An onset is confirmed 55 to 85 ms
+// after it happened (at most about 105 ms), once the 48 ms after it are in; Push then
+// reports it, and Last gives its exact sample.
+//
+// Segments runs the same detector over a recording, skips the 50 ms attack
+// (AttackSkip) and ends each window at the first of: WindowLen samples (what Analyze
+// can use for the lowest expected pitch), 10 ms before the next onset (an onset is
+// placed at or after the true one, up to about 8 ms late when a low note starts under
+// a louder high one), the point where the level has fallen 35 dB below the attack
+// peak, or the end of the recording.
+//
+// Measured on harp-like plucks (capture/synth, 14 partials) struck while the previous
+// note rings 3 to 10 dB below the new one, low after high (C5–A3, G4–E2), high after
+// low (A3–C5, E2–G4) and in the bass (A0–A1), and on re-strikes of the same string
+// that raise the level by 3 dB (A0, A2, C4, C7), each with and without the pluck's
+// noise, 60 phase sets each (2880 pairs, see onset_test.go): every pair found but one
+// A0 re-strike, onsets placed 0 to 8 ms late except six bass re-strikes (10 to 20 ms
+// late, within half a period of A0).
 //
 // # Accuracy and limits
 //
@@ -138,10 +206,13 @@
 // # Speed
 //
 // On one core of the development machine (a shared AMD EPYC), Analyze takes about 0.4 to
-// 1.1 ms of CPU for a 1 s note from A0 to C8 with no hint, 900 to 2400 times real time,
-// and Segments plus Analyze 900 to 1900 times; BenchmarkAnalyze and BenchmarkMeasure
-// report audio seconds per CPU second. New sizes the buffers for Config.MaxSamples (about
-// 3.5 MB for the default 2^16 at 48 kHz); the FFT plans are made on first use.
+// 1.1 ms of CPU for a 1 s note from A0 to C8 with no hint, 900 to 2400 times real time;
+// the onset detector about 0.35 ms per second of audio (a 512-point spectrum every
+// 21 ms, with its own small FFT), and Segments plus Analyze together 500 to 1000
+// times real time. BenchmarkAnalyze, BenchmarkMeasure and BenchmarkOnsetDetector_Push
+// report audio seconds per CPU second. New sizes the buffers for Config.MaxSamples
+// (about 3.5 MB for the default 2^16 at 48 kHz); the FFT plans are made on first use.
+// An OnsetDetector holds about 75 kB.
 //
 // # References
 //

@@ -22,24 +22,24 @@ const (
 	onsetRiseMin    = 1.5    // the mean power after the onset over that before it, at least (1.8 dB) …
 	onsetBeforeS    = 0.04   // … over this long before (a period at 25 Hz, so a low note's …
 	onsetAfterS     = 0.04   // … own waveform is no rise) and this long after
-	onsetSharp      = 1      // the onset is placed where the level over this many sub-blocks …
-	onsetPlaceS     = 0.013  // … within this time of the largest rise first jumps steeply
+	onsetSharp      = 1      // the onset is placed where the level over this many sub-blocks jumps …
+	onsetPlaceS     = 0.013  // … in the frame or this long after it
 	onsetLevelMin   = 1e-6   // mean square at the onset below which nothing starts (−60 dBFS)
 	onsetHPHz       = 80.0   // corner of the high-pass that removes offsets from the level
-	onsetSustainS0  = 0.008  // the sound must go on: its level from this long after the onset …
-	onsetSustainS1  = 0.024  // … to this long after …
-	onsetSustainDB  = 16.0   // … within this many dB of the onset's peak (a click or step is not)
+	onsetAttackS    = 0.008  // the level after the attack, from this long after the onset, must rise too …
+	onsetHoldRise   = 1.25   // … by this power ratio (1 dB) over the level before the onset …
+	onsetSustainDB  = 16.0   // … and stay within this many dB of the attack's peak (a click or step dies)
 	onsetRefractory = 0.1    // no second onset within this time, seconds
 	attackSkipS     = 0.05   // attack transient skipped before analysis, seconds
-	subRing         = 256    // sub-blocks of level history kept
-	ringLen         = 2 * maxFrame
+	subRing         = 256    // sub-blocks of level history kept (≥ the reach of a decision)
+	ringLen         = 4 * maxFrame
 	ringMask        = ringLen - 1
 )
 
 // OnsetDetector finds note onsets in a stream of samples: a note starts where the
 // short-time spectrum rises (spectral flux), also when an earlier note still rings, and
 // not where a sound stops. It does not allocate after NewOnsetDetector; its memory is
-// fixed (about 60 kB). See the package doc for the method and its limits.
+// fixed (about 75 kB). See the package doc for the method and its limits.
 type OnsetDetector struct {
 	// Set once.
 	dec         int     // input samples per analysed sample
@@ -50,7 +50,7 @@ type OnsetDetector struct {
 	before      int     // sub-blocks in the level before an onset …
 	after       int     // … and after it
 	placeSubs   int     // onsetPlaceS in sub-blocks
-	sus0, sus1  int     // sustain check, sub-blocks after the onset
+	attack      int     // onsetAttackS in sub-blocks
 	refractory  int     // sub-blocks
 	win         [maxFrame]float64
 	fft         realFFT
@@ -64,7 +64,7 @@ type OnsetDetector struct {
 
 	// Analysed samples and their level per sub-block.
 	nDec          int64
-	ring          [ringLen]float64 // the latest analysed samples
+	ring          [ringLen]float32 // the latest analysed samples
 	prevY, hpY    float64
 	eHP, eDiff    float64 // sums of squares in the current sub-block: high-passed signal, difference
 	subs          int64   // completed sub-blocks
@@ -73,8 +73,8 @@ type OnsetDetector struct {
 	// Spectra and flux.
 	frame  [maxFrame]float64
 	power  [maxHalf + 1]float64
-	logs   [onsetMemory + 1][maxHalf + 1]float64 // log2 power of the latest frames
-	ref    [maxHalf + 1]float64                  // the loudest of the earlier ones
+	logs   [onsetMemory + 1][maxHalf + 1]float32 // log2 power of the latest frames
+	ref    [maxHalf + 1]float32                  // the loudest of the earlier ones
 	frames int64
 	flux   [onsetMedianLen]float64
 	sorted [onsetMedianLen]float64
@@ -82,6 +82,8 @@ type OnsetDetector struct {
 	// Decisions.
 	pending        bool  // a frame's flux stood out; its span waits for the decision
 	spanLo, spanHi int64 // sub-blocks of that frame
+	queued         bool  // later frames stood out meanwhile; their span is next
+	nextLo, nextHi int64
 	last           int64 // input sample of the latest onset, or -1
 	lastSub        int64 // its sub-block
 	found          bool  // an onset was confirmed since the flag was cleared
@@ -108,8 +110,7 @@ func (d *OnsetDetector) init(rateHz float64) {
 	d.before = max(1, int(math.Round(onsetBeforeS/subS)))
 	d.after = max(1, int(math.Round(onsetAfterS/subS)))
 	d.placeSubs = max(1, int(math.Round(onsetPlaceS/subS)))
-	d.sus0 = max(1, int(math.Round(onsetSustainS0/subS)))
-	d.sus1 = max(d.sus0+1, int(math.Round(onsetSustainS1/subS)))
+	d.attack = max(1, int(math.Round(onsetAttackS/subS)))
 	d.refractory = int(math.Ceil(onsetRefractory / subS))
 	d.hpA = 1 / (1 + 2*math.Pi*onsetHPHz/rate)
 	var wsum float64
@@ -121,7 +122,7 @@ func (d *OnsetDetector) init(rateHz float64) {
 	d.floor = math.Pow(10, onsetFloorDB/10)
 	d.fluxMin = onsetFluxMin / (10 * math.Log10(2))
 	d.fft.init(d.n)
-	silent := fastLog2(d.floor)
+	silent := float32(fastLog2(d.floor))
 	for i := range d.logs {
 		for k := range d.logs[i] {
 			d.logs[i][k] = silent
@@ -177,7 +178,7 @@ func (d *OnsetDetector) Last() int64 { return d.last }
 
 // sample takes the next analysed sample.
 func (d *OnsetDetector) sample(y float64) {
-	d.ring[d.nDec&ringMask] = y
+	d.ring[d.nDec&ringMask] = float32(y)
 	diff := y - d.prevY
 	d.hpY = d.hpA * (d.hpY + diff)
 	d.prevY = y

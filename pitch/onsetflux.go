@@ -6,12 +6,12 @@ func (d *OnsetDetector) spectralFrame() {
 	m := d.n / 2
 	start := d.nDec - int64(d.n)
 	for i := 0; i < d.n; i++ {
-		d.frame[i] = d.win[i] * d.ring[(start+int64(i))&ringMask]
+		d.frame[i] = d.win[i] * float64(d.ring[(start+int64(i))&ringMask])
 	}
 	d.fft.power(d.power[:m+1], d.frame[:d.n])
 	cur := &d.logs[d.frames%(onsetMemory+1)]
 	for k := 0; k <= m; k++ {
-		cur[k] = fastLog2(d.power[k]*d.norm + d.floor)
+		cur[k] = float32(fastLog2(d.power[k]*d.norm + d.floor))
 	}
 	// The reference is each bin's loudest level over the earlier frames, so that a
 	// partial coming back from a beat's null is no rise, widened by a bin each side, so
@@ -29,15 +29,23 @@ func (d *OnsetDetector) spectralFrame() {
 	for k := 1; k < m; k++ {
 		r := max(ref[k-1], ref[k], ref[k+1])
 		if c := cur[k]; c > r {
-			flux += c - r
+			flux += float64(c - r)
 		}
 	}
 	thr := d.fluxMin + onsetFluxRel*d.median()
 	d.flux[d.frames%onsetMedianLen] = flux
 	d.frames++
-	if flux >= thr && !d.pending {
-		d.pending = true
-		d.spanLo, d.spanHi = max(0, d.subs-int64(d.n/d.sub)), d.subs
+	if flux < thr {
+		return
+	}
+	lo := max(0, d.subs-onsetSubs)
+	switch {
+	case !d.pending:
+		d.pending, d.spanLo, d.spanHi = true, lo, d.subs
+	case !d.queued: // a rise while an earlier one waits (a stop just before a strike)
+		d.queued, d.nextLo, d.nextHi = true, lo, d.subs
+	default:
+		d.nextHi = d.subs
 	}
 }
 

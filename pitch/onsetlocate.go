@@ -3,61 +3,70 @@ package pitch
 import "math"
 
 // decide settles a candidate once enough samples after its span have arrived: the
-// level must rise in the span, and go on after the rise.
+// level must rise in the span, at the onset and after its attack.
 func (d *OnsetDetector) decide() {
-	// The rise needs onsetAfterS after the span; the placement and the sustain check
-	// reach at most placeSubs past it, plus what they look at after the onset.
-	if d.subs < d.spanHi+int64(max(d.after-1, d.placeSubs+max(d.sus1, onsetSharp))) {
-		return
+	// The onset lies at most placeSubs past the span; the last look is at the level
+	// from attack to attack+after sub-blocks after it.
+	for d.pending && d.subs >= d.spanHi+int64(d.placeSubs+d.attack+d.after) {
+		d.settle()
+		d.pending, d.spanLo, d.spanHi = d.queued, d.nextLo, d.nextHi
+		d.queued = false
 	}
-	d.pending = false
+}
+
+// settle decides the pending span.
+func (d *OnsetDetector) settle() {
 	lo := max(d.spanLo, d.lastSub+int64(d.refractory))
-	j, ok := d.rises(lo, d.spanHi)
-	if !ok {
+	if !d.rises(lo, d.spanHi) {
 		return
 	}
-	j = d.place(max(lo, j-int64(d.placeSubs)), j+int64(d.placeSubs)+1, j)
-	if d.mean(&d.subHP, j, j+int64(d.after)) < onsetLevelMin || !d.sustained(j) {
+	j, ok := d.place(lo, d.spanHi+int64(d.placeSubs))
+	if !ok || d.mean(&d.subHP, j, j+int64(d.after)) < onsetLevelMin ||
+		d.rise(j+int64(d.attack), j) < onsetHoldRise || !d.sustained(j) {
 		return
 	}
 	d.last, d.lastSub, d.found = d.onsetSample(j), j, true
 }
 
-// rises returns the sub-block in [lo, hi) where the level rises the most: the mean
-// power of the onsetAfterS after it over that of the onsetBeforeS before it, in the
-// high-passed signal or in its first difference (which stresses the broadband noise of
-// a strike or pluck); of equal rises the last. It fails when no rise reaches
-// onsetRiseMin.
-func (d *OnsetDetector) rises(lo, hi int64) (int64, bool) {
-	best, bestJ := 0.0, int64(-1)
+// rises reports whether the level rises somewhere in [lo, hi): whether rise(j, j)
+// reaches onsetRiseMin.
+func (d *OnsetDetector) rises(lo, hi int64) bool {
 	for j := lo; j < hi; j++ {
-		r := max(ratio(d.mean(&d.subHP, j, j+int64(d.after)), d.mean(&d.subHP, j-int64(d.before), j)),
-			ratio(d.mean(&d.subDif, j, j+int64(d.after)), d.mean(&d.subDif, j-int64(d.before), j)))
-		if r >= best {
-			best, bestJ = r, j
+		if d.rise(j, j) >= onsetRiseMin {
+			return true
 		}
 	}
-	return bestJ, bestJ >= 0 && best >= onsetRiseMin
+	return false
 }
 
-// place returns the first sub-block in [lo, hi) whose level over the next onsetSharp
-// sub-blocks exceeds the loudest sub-block of the onsetBeforeS before it by at least
-// half (in dB) the largest such jump in the range: the leading edge of the rise, to a
-// sub-block when it is steep. Without any jump it returns j.
-func (d *OnsetDetector) place(lo, hi, j int64) int64 {
+// rise is the mean power over the onsetAfterS from sub-block from over the mean power
+// over the onsetBeforeS before sub-block j, in the high-passed signal or in its first
+// difference (which stresses the broadband noise of a strike or pluck), whichever
+// rises more.
+func (d *OnsetDetector) rise(from, j int64) float64 {
+	to, b := from+int64(d.after), j-int64(d.before)
+	return max(ratio(d.mean(&d.subHP, from, to), d.mean(&d.subHP, b, j)),
+		ratio(d.mean(&d.subDif, from, to), d.mean(&d.subDif, b, j)))
+}
+
+// place returns the first sub-block in [lo, hi) whose level exceeds the loudest
+// sub-block of the onsetBeforeS before it by at least half (in dB) the largest such
+// jump in the range: the leading edge of the rise. A ringing note's own waveform
+// repeats within onsetBeforeS and decays, so it makes no jump. It fails without any.
+func (d *OnsetDetector) place(lo, hi int64) (int64, bool) {
 	var best float64
 	for i := lo; i < hi; i++ {
 		best = max(best, d.jump(i))
 	}
 	if best <= 1 {
-		return j
+		return 0, false
 	}
 	for i := lo; i < hi; i++ {
 		if d.jump(i) >= math.Sqrt(best) {
-			return i
+			return i, true
 		}
 	}
-	return j
+	return 0, false
 }
 
 // jump is the larger, in the two bands, of the mean power over the onsetSharp
@@ -97,17 +106,14 @@ func (d *OnsetDetector) mean(e *[subRing]float64, lo, hi int64) float64 {
 	return s / float64(hi-lo)
 }
 
-// sustained reports whether the sound starting in sub-block j goes on: its level from
-// onsetSustainS0 to onsetSustainS1 after the onset stays within onsetSustainDB of the
-// loudest sub-block before that. A click, a knock without resonance or a step of the
-// offset dies away faster and is no note.
+// sustained reports whether the level after the attack of an onset in sub-block j
+// (over onsetAfterS from onsetAttackS on, high-passed) stays within onsetSustainDB of
+// the attack's loudest sub-block. A click, a knock without resonance or a step of
+// the offset dies away faster and is no note.
 func (d *OnsetDetector) sustained(j int64) bool {
-	var peak float64
-	for i := j; i < j+int64(d.sus0); i++ {
-		peak = max(peak, d.subHP[i%subRing])
-	}
-	sus := d.mean(&d.subHP, j+int64(d.sus0), j+int64(d.sus1))
-	return sus >= peak*math.Pow(10, -onsetSustainDB/10)
+	peak := d.peak(&d.subHP, j, j+int64(d.attack))
+	after := d.mean(&d.subHP, j+int64(d.attack), j+int64(d.attack+d.after))
+	return after >= peak*math.Pow(10, -onsetSustainDB/10)
 }
 
 // onsetSample returns the input sample where the onset in sub-block j begins: the first
@@ -117,18 +123,18 @@ func (d *OnsetDetector) onsetSample(j int64) int64 {
 	first := j * int64(d.sub)
 	var prev float64
 	if first > 0 {
-		prev = d.ring[(first-1)&ringMask]
+		prev = float64(d.ring[(first-1)&ringMask])
 	}
 	var peak float64
 	p := prev
 	for i := first; i < first+int64(d.sub); i++ {
-		y := d.ring[i&ringMask]
+		y := float64(d.ring[i&ringMask])
 		peak = max(peak, math.Abs(y-p))
 		p = y
 	}
 	p = prev
 	for i := first; i < first+int64(d.sub); i++ {
-		y := d.ring[i&ringMask]
+		y := float64(d.ring[i&ringMask])
 		if math.Abs(y-p) >= peak/3 {
 			return i * int64(d.dec)
 		}

@@ -9,7 +9,7 @@ const (
 	decayDB     = 35.0  // a note's useful sustain ends this far below its attack peak
 	peakS       = 0.2   // the attack peak is looked for this long after the onset
 	levelBlockS = 0.005 // blocks in which the decay is followed
-	guardS      = 0.005 // a window ends this long before the next onset (its placement error)
+	guardS      = 0.01  // a window ends this long before the next onset (placed up to ~8 ms late)
 	minRateHz   = 1000
 	maxMinHzHz  = 20000
 )

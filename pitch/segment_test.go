@@ -99,8 +99,9 @@ func TestSegments_Silence(t *testing.T) {
 }
 
 // maxOnsetDelayS bounds the time from an onset to its confirmation by Push: the
-// frame that shows the rise, plus the onsetAfterS of level the decision needs.
-const maxOnsetDelayS = onsetFrameS + onsetAfterS + 0.01
+// frame that shows the rise, the placement's reach past it, and the attack and the
+// onsetAfterS of level after it that the decision needs (plus a sub-block).
+const maxOnsetDelayS = onsetFrameS + onsetPlaceS + onsetAttackS + onsetAfterS + 0.002
 
 func TestOnsetDetector_StreamingMatchesSegments(t *testing.T) {
 	// Any block size gives the same onsets as the offline scan, each confirmed within

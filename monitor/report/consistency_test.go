@@ -82,8 +82,8 @@ func TestReport_ListenerAndFitConsistent(t *testing.T) {
 		if err := r.WriteHTML(&page); err != nil {
 			t.Fatal(err)
 		}
-		for _, want := range []string{"state at dawn (listener)", "listener ¢/h (2-hour slope)", "fit: cents now",
-			"fit: steady (|¢/h| &lt; 1) in", "steady under 1 ¢/h"} {
+		for _, want := range []string{"state at dawn (listener)", "listener ¢/h (2 h)", "fit: cents now",
+			"fit: steady (&lt; 1 ¢/h) in", "steady under 1 ¢/h"} {
 			plain := strings.ReplaceAll(want, "&lt;", "<")
 			if !strings.Contains(table.String(), plain) {
 				t.Errorf("table lacks %q:\n%s", plain, table.String())

@@ -22,10 +22,10 @@ type header struct {
 func headerOf(l Limits) header {
 	return header{
 		State:        "state at dawn (listener)",
-		ListenerRate: fmt.Sprintf("listener ¢/h (%s slope)", windowText(l)),
+		ListenerRate: fmt.Sprintf("listener ¢/h (%s h)", trimNum(l.ListenerRateWindowH)),
 		Cents:        "fit: cents now",
 		Rate:         "fit: ¢/h now (± SE)",
-		Steady:       fmt.Sprintf("fit: steady (|¢/h| < %s) in", trimNum(l.SteadyCentsPerHour)),
+		Steady:       fmt.Sprintf("fit: steady (< %s ¢/h) in", trimNum(l.SteadyCentsPerHour)),
 		Ahead:        "fit: at +24 h",
 		Margin:       "margin",
 		PullUp:       "next pull-up",
@@ -64,7 +64,8 @@ type view struct {
 	Panels                             []panel
 	Night                              []string
 	Flagged                            int
-	Strings                            int
+	Strings                            int // heard: in the journal
+	Listed                             int // in the report: the config's and the journal's
 	Readings                           int
 	TradeNote                          string
 }
@@ -98,7 +99,7 @@ func (r *Report) WriteHTML(w io.Writer) error {
 		ReadSummary: r.ReadSummary, ReadClean: r.ReadClean,
 		CSS: template.CSS(pageCSS), Caution: tension.Caution, HighMargin: r.HighMargin(), Bases: r.Bases, Limits: r.Limits,
 		CentsPlot: template.HTML(r.centsPlot()), MarginPlot: template.HTML(r.marginPlot()),
-		LoadPlot: template.HTML(r.loadPlot()), Flagged: len(r.Flagged()), Strings: len(r.Strings),
+		LoadPlot: template.HTML(r.loadPlot()), Flagged: len(r.Flagged()), Strings: r.JournalStrings, Listed: len(r.Strings),
 		Readings: len(r.Readings),
 		TradeNote: "A raise falls back roughly 25–35 % on the treble bridge and about 10 % on the bass bridge " +
 			"(reference-values §4.3: trade practice, not a measurement).",

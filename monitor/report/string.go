@@ -352,11 +352,11 @@ func (s *String) listenerSettlingText(l Limits) string {
 	case "few-readings":
 		why = "it has too few readings for its drift rate yet"
 	default:
-		why = fmt.Sprintf("its %s slope, %+.2f cents/hour, is not under %.1f", windowText(l), s.ListenerRate,
-			l.SteadyCentsPerHour)
+		why = fmt.Sprintf("%s slope %+.2f cents/hour, not under %s", windowText(l), s.ListenerRate,
+			trimNum(l.SteadyCentsPerHour))
 	}
-	return fmt.Sprintf("the listener still calls it settling (%s); the fit's rate now, %+.2f cents/hour, is under "+
-		"the threshold, so it should be steady soon", why, s.Analysis.RateNow)
+	return fmt.Sprintf("the listener still calls it settling (%s); the fit's rate now, %+.2f, is under it: "+
+		"steady soon", why, s.Analysis.RateNow)
 }
 
 func windowText(l Limits) string {
