@@ -176,7 +176,7 @@ func registerGlobalPin(t *testing.T, name string) *gpiotest.Pin {
 
 func waitUntil(t *testing.T, cond func() bool) {
 	t.Helper()
-	deadline := time.Now().Add(3 * time.Second)
+	deadline := time.Now().Add(30 * time.Second) // a hang detector, generous for a loaded 2-core box
 	for !cond() {
 		if time.Now().After(deadline) {
 			t.Fatal("timed out")

@@ -33,7 +33,9 @@ func cmdInputs(ctx context.Context, args []string, stdout, stderr io.Writer) err
 	fs := flag.NewFlagSet("inputs", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: taut inputs\n\nLists the audio input devices (name, channels, default rate); '*' marks the default.")
+		fmt.Fprintln(stderr, "usage: taut inputs\n\nLists the audio input devices (name, host API, channels, default rate); '*' marks the\n"+
+			"default. A build without PortAudio says how to rebuild with it, or how to pipe raw PCM\n"+
+			"into taut listen instead (exit status 1).")
 	}
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {

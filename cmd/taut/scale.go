@@ -37,7 +37,7 @@ flags:
 func cmdScale(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("scale", flag.ContinueOnError)
 	fs.SetOutput(stderr)
-	units := fs.String("units", "si", "force units of the text and CSV output: si (N), kgf or lbf")
+	units := fs.String("units", "si", "`unit` of force in the text and CSV output: si (N), kgf or lbf")
 	asJSON := fs.Bool("json", false, "print the scale sheet as JSON (always SI: newtons, metres, kg/m)")
 	asCSV := fs.Bool("csv", false, "print one CSV row per string (the caution, if any, goes to stderr)")
 	fs.Usage = func() {

@@ -33,7 +33,7 @@ type scaleRow struct {
 	TargetHz       float64 `json:"target_hz"` // first partial
 	LengthM        float64 `json:"length_m"`
 	F0Hz           float64 `json:"f0_hz"`            // ideal-string f0 = target/√(1+B)
-	FirstPartialHz float64 `json:"first_partial_hz"` // f0·√(1+B), equal to the target: a check`
+	FirstPartialHz float64 `json:"first_partial_hz"` // f0·√(1+B), equal to the target: a check
 	Construction   string  `json:"construction"`
 	MassPerMKg     float64 `json:"mass_per_m_kg"`
 	MassWeighed    bool    `json:"mass_weighed"`

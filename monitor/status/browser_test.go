@@ -118,14 +118,14 @@ func waitJS(t *testing.T, ctx context.Context, what, expr string) {
 			}
 		}()
 	}
-	deadline := time.Now().Add(10 * time.Second) // generous: CI boxes are loaded
+	deadline := time.Now().Add(30 * time.Second) // a hang detector, generous: CI boxes are loaded
 	for {
 		ok, err := chromedp.Run(ctx, chromedp.Evaluate[bool](expr))
 		if err == nil && ok {
 			return
 		}
 		if time.Now().After(deadline) {
-			t.Fatalf("waited 10 s for %s (%s): last error %v", what, expr, err)
+			t.Fatalf("waited 30 s for %s (%s): last error %v", what, expr, err)
 		}
 		time.Sleep(25 * time.Millisecond)
 	}
