@@ -168,7 +168,14 @@ func (l *listener) run(ctx context.Context) (err error) {
 		}
 	}
 	sinkCtx, stopSinks := context.WithCancel(context.WithoutCancel(ctx))
-	l.closers = append(l.closers, stopSinks)
+	l.closers = append(l.closers, func() {
+		stopSinks()
+		// The status page shuts down on sinkCtx; wait for it so nothing logs after the
+		// log file closes. Its error was logged by startStatus.
+		if srv := l.status.Load(); srv != nil {
+			_ = srv.Wait()
+		}
+	})
 	sinks, err := l.startSinks(ctx, sinkCtx)
 	if err != nil {
 		return err

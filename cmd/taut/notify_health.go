@@ -35,12 +35,19 @@ func (l *listener) ready() bool {
 	return true
 }
 
-// health implements pipeline: healthy while audio frames arrived within frameAge and
-// the journal has no error outstanding, or, failing that, its backlog is draining.
-// why says what is wrong ("" when healthy).
+// health implements pipeline: ok (feed the watchdog) while audio frames arrived within
+// frameAge and the journal is not about to lose entries; why says what is wrong or
+// degraded ("" when all is well).
+//
+// A journal that returns write errors (a full or read-only disk) is degraded, not
+// dead: the writer holds entries in memory and retries, the fault lamp, /healthz and
+// STATUS= show it, and the restorer can free space without losing the night. A restart
+// by the watchdog would throw those held entries away and fix nothing, so the
+// watchdog is only starved once the held entries near the journal's limit, when
+// losing them is certain anyway and a fresh process is the better bet.
 func (l *listener) health(h *healthState, frameAge time.Duration) (bool, string) {
 	now := time.Now()
-	var problems []string
+	var problems, degraded []string
 	if m := l.mon.Load(); m != nil {
 		st := m.Stats()
 		if st.FramesRead != h.frames || h.changedAt.IsZero() {
@@ -60,14 +67,20 @@ func (l *listener) health(h *healthState, frameAge time.Duration) (bool, string)
 		h.backlog, h.written = js.Backlog, js.Written
 		switch {
 		case draining:
+		case js.LastError != nil && js.Backlog >= journalBacklogStarve:
+			problems = append(problems, fmt.Sprintf("journal failing and %d entries held, near the limit: %v", js.Backlog, js.LastError))
 		case js.LastError != nil:
-			problems = append(problems, fmt.Sprintf("journal failing, %d entries held and retried: %v", js.Backlog, js.LastError))
+			degraded = append(degraded, fmt.Sprintf("journal failing, %d entries held and retried: %v", js.Backlog, js.LastError))
 		case js.Backlog > 0:
-			problems = append(problems, fmt.Sprintf("journal: %d entries waiting to be written", js.Backlog))
+			degraded = append(degraded, fmt.Sprintf("journal: %d entries waiting to be written", js.Backlog))
 		}
 	}
-	return len(problems) == 0, strings.Join(problems, "; ")
+	return len(problems) == 0, strings.Join(append(problems, degraded...), "; ")
 }
+
+// journalBacklogStarve is the held-entry count at which a failing journal starves the
+// watchdog: 90 % of the writer's default backlog.
+const journalBacklogStarve = journal.DefaultBacklogEntries * 9 / 10
 
 // summary implements pipeline: the strings part of the STATUS= line.
 func (l *listener) summary() string { return l.states.summary() }

@@ -166,8 +166,8 @@ func (p *pacedStdin) feed(ctx context.Context, w *io.PipeWriter, pcm io.Reader) 
 //
 //   - no READY=1 before the first audio frames; READY=1 before any WATCHDOG=1;
 //   - WATCHDOG=1 while frames flow, none while stdin is stalled, again once it flows;
-//   - none while the journal's writes fail (a full disk), again once they work and
-//     the held entries are written;
+//   - still fed while the journal's writes fail (a full disk) and the held entries
+//     are far from the limit: a restart would lose them (see listener.health);
 //   - STATUS= lines with the strings summary and what is wrong;
 //   - STOPPING=1 when the signal comes, and no WATCHDOG=1 after it;
 //   - afterwards the journal holds every reading, without a seq gap.
@@ -227,12 +227,11 @@ func TestListen_systemdNotify(t *testing.T) {
 		t.Errorf("status %q does not name the cause", failing.msg)
 	}
 	time.Sleep(500 * time.Millisecond)
-	if n := sd.count("WATCHDOG=1", failing.at.Add(60*time.Millisecond), time.Now()); n != 0 {
-		t.Errorf("%d WATCHDOG=1 while the journal could not be written, want none", n)
+	if n := sd.count("WATCHDOG=1", failing.at, time.Now()); n == 0 {
+		t.Errorf("no WATCHDOG=1 while the journal failed with few entries held: a restart would lose them")
 	}
 	fsys.Clear()
 	healed := time.Now()
-	sd.waitFor(t, "WATCHDOG=1", "", healed)
 	sd.waitFor(t, "STATUS=", "journal ok", healed)
 
 	stop()
