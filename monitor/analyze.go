@@ -68,9 +68,9 @@ func (m *Monitor) heard(l *lane, t float64) {
 	m.stats.notes.Add(1)
 	var mt match
 	if l.by != "" {
-		mt = m.matcher.direct(l.noteCands[0], m.note.F0Hz, l.by)
+		mt = m.matcher.direct(l.noteCands[0], m.note.FundamentalHz, l.by)
 	} else {
-		mt = m.matcher.nearest(l.noteCands, m.note.F0Hz, t)
+		mt = m.matcher.nearest(l.noteCands, m.note.FundamentalHz, t)
 	}
 	m.advanceQuiet(t)
 	if mt.idx < 0 {

@@ -70,7 +70,10 @@
 //
 // Tension uses the fitted f0 (not the first partial, which stiffness raises by
 // √(1+B)): T = 4·L²·μ·f0² (tension.String.Tension); margin = T / breaking load;
-// cents = 1200·log2(f0 / target) (note.Cents). The measured B is compared with the
+// cents = 1200·log2(f1 / target) (note.Cents), where f1 is the measured first partial:
+// a target is the pitch a tuner hears and shows, the first partial, so a string tuned
+// by any ordinary tuner reads 0 cents; matching compares first partials too. The
+// measured B is compared with the
 // string data's prediction B = π³·E·d⁴/(64·T·L²) (Fletcher 1964) and a ratio outside
 // 0.5..2 (0.5..3 for wound strings, whose core-only prediction is a lower bound) is
 // flagged in Detail. A margin above MarginWarn is noted in Detail with a caution that

@@ -38,19 +38,19 @@ type matcher struct {
 
 // direct attributes a note to the only candidate (a pickup channel or the string the
 // exciter just drove); the pitch search was restricted to that string's range.
-func (mt *matcher) direct(idx int, f0Hz float64, by string) match {
-	return match{idx: idx, by: by, cents: note.Cents(f0Hz, mt.strings[idx].TargetHz)}
+func (mt *matcher) direct(idx int, firstHz float64, by string) match {
+	return match{idx: idx, by: by, cents: note.Cents(firstHz, mt.strings[idx].TargetHz)}
 }
 
 // nearest attributes a note to the candidate whose predicted current pitch is nearest
-// its fitted f0. It refuses when the nearest is further than MatchCents, or when the
+// its measured first partial. It refuses when the nearest is further than MatchCents, or when the
 // runner-up is within AmbiguousCents of the nearest (too close to call: unisons always
 // are, unless a channel or the exciter tells them apart).
-func (mt *matcher) nearest(cands []int, f0Hz, t float64) match {
+func (mt *matcher) nearest(cands []int, firstHz, t float64) match {
 	best, second := -1, -1
 	bestD, secondD := math.Inf(1), math.Inf(1)
 	for _, i := range cands {
-		d := math.Abs(note.Cents(f0Hz, mt.strings[i].TargetHz) - mt.trackers[i].predict(t, mt.lim))
+		d := math.Abs(note.Cents(firstHz, mt.strings[i].TargetHz) - mt.trackers[i].predict(t, mt.lim))
 		switch {
 		case d < bestD:
 			second, secondD = best, bestD
@@ -65,14 +65,14 @@ func (mt *matcher) nearest(cands []int, f0Hz, t float64) match {
 	case bestD > mt.lim.matchCents:
 		return match{idx: -1, reason: "too-far", detail: fmt.Sprintf(
 			"%.1f Hz is %.0f cents from the nearest prediction (%s); limit %.0f",
-			f0Hz, bestD, mt.strings[best].ID, mt.lim.matchCents)}
+			firstHz, bestD, mt.strings[best].ID, mt.lim.matchCents)}
 	case second >= 0 && secondD <= mt.lim.matchCents && secondD-bestD < mt.lim.ambiguousCents:
 		return match{idx: -1, reason: "ambiguous", detail: fmt.Sprintf(
 			"%.1f Hz fits %s (%.1f cents) and %s (%.1f cents) alike; "+
 				"unisons and strings this close need a pickup channel or the exciter",
-			f0Hz, mt.strings[best].ID, bestD, mt.strings[second].ID, secondD)}
+			firstHz, mt.strings[best].ID, bestD, mt.strings[second].ID, secondD)}
 	}
-	return match{idx: best, by: byPrediction, cents: note.Cents(f0Hz, mt.strings[best].TargetHz)}
+	return match{idx: best, by: byPrediction, cents: note.Cents(firstHz, mt.strings[best].TargetHz)}
 }
 
 // hintRange returns the fundamental search range for a note from one of cands: the
