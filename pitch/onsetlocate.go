@@ -17,10 +17,13 @@ func (d *OnsetDetector) decide() {
 // settle decides the pending span.
 func (d *OnsetDetector) settle() {
 	lo := max(d.spanLo, d.lastSub+int64(d.refractory))
-	if !d.rises(lo, d.spanHi) {
+	j, ok := d.rises(lo, d.spanHi)
+	if !ok {
 		return
 	}
-	j, ok := d.place(lo, d.spanHi+int64(d.placeSubs))
+	// The onset lies at most onsetBeforeS before the largest rise (which can lead it
+	// where a low note's waveform makes the level before uneven).
+	j, ok = d.place(max(lo, j-15), d.spanHi+int64(d.placeSubs))
 	if !ok || d.mean(&d.subHP, j, j+int64(d.after)) < onsetLevelMin ||
 		d.rise(j+int64(d.attack), j) < onsetHoldRise || !d.sustained(j) {
 		return
@@ -28,15 +31,16 @@ func (d *OnsetDetector) settle() {
 	d.last, d.lastSub, d.found = d.onsetSample(j), j, true
 }
 
-// rises reports whether the level rises somewhere in [lo, hi): whether rise(j, j)
-// reaches onsetRiseMin.
-func (d *OnsetDetector) rises(lo, hi int64) bool {
+// rises returns the sub-block in [lo, hi) where the level rises the most, rise(j, j),
+// of equal rises the last; it fails when no rise reaches onsetRiseMin.
+func (d *OnsetDetector) rises(lo, hi int64) (int64, bool) {
+	best, bestJ := 0.0, int64(-1)
 	for j := lo; j < hi; j++ {
-		if d.rise(j, j) >= onsetRiseMin {
-			return true
+		if r := d.rise(j, j); r >= best {
+			best, bestJ = r, j
 		}
 	}
-	return false
+	return bestJ, bestJ >= 0 && best >= onsetRiseMin
 }
 
 // rise is the mean power over the onsetAfterS from sub-block from over the mean power
@@ -51,18 +55,24 @@ func (d *OnsetDetector) rise(from, j int64) float64 {
 
 // place returns the first sub-block in [lo, hi) whose level exceeds the loudest
 // sub-block of the onsetBeforeS before it by at least half (in dB) the largest such
-// jump in the range: the leading edge of the rise. A ringing note's own waveform
-// repeats within onsetBeforeS and decays, so it makes no jump. It fails without any.
+// jump in the range, or by the largest itself when that is below onsetJumpSure: the
+// leading edge of the rise. A ringing note's own waveform repeats within
+// onsetBeforeS and decays, so it makes no jump (a few tenths of a dB where partials
+// beat). It fails when no jump reaches onsetJumpMin.
 func (d *OnsetDetector) place(lo, hi int64) (int64, bool) {
 	var best float64
 	for i := lo; i < hi; i++ {
 		best = max(best, d.jump(i))
 	}
-	if best <= 1 {
+	if best < onsetJumpMin {
 		return 0, false
 	}
+	bar := best
+	if best >= onsetJumpSure {
+		bar = math.Pow(best, onsetJumpEdge)
+	}
 	for i := lo; i < hi; i++ {
-		if d.jump(i) >= math.Sqrt(best) {
+		if d.jump(i) >= bar {
 			return i, true
 		}
 	}
@@ -116,31 +126,35 @@ func (d *OnsetDetector) sustained(j int64) bool {
 	return after >= peak*math.Pow(10, -onsetSustainDB/10)
 }
 
-// onsetSample returns the input sample where the onset in sub-block j begins: the first
-// analysed sample whose step from its predecessor reaches a third of the sub-block's
-// largest step.
+// onsetSample returns the input sample where the onset in sub-block j begins: the
+// first analysed sample whose step from its predecessor exceeds every step of the
+// onsetBeforeS before (the sound or noise that was there) and reaches a third of the
+// largest step in j; if none does, the start of the next sub-block, so that the onset
+// is not placed before the new sound.
 func (d *OnsetDetector) onsetSample(j int64) int64 {
-	first := j * int64(d.sub)
-	var prev float64
-	if first > 0 {
-		prev = float64(d.ring[(first-1)&ringMask])
-	}
-	var peak float64
-	p := prev
-	for i := first; i < first+int64(d.sub); i++ {
-		y := float64(d.ring[i&ringMask])
-		peak = max(peak, math.Abs(y-p))
-		p = y
-	}
-	p = prev
-	for i := first; i < first+int64(d.sub); i++ {
-		y := float64(d.ring[i&ringMask])
-		if math.Abs(y-p) >= peak/3 {
+	first, end := j*int64(d.sub), (j+1)*int64(d.sub)
+	bar := max(d.maxStep(first-int64(d.before*d.sub), first), d.maxStep(first, end)/3)
+	for i := first; i < end; i++ {
+		if d.step(i) > bar {
 			return i * int64(d.dec)
 		}
-		p = y
 	}
-	return first * int64(d.dec)
+	return end * int64(d.dec)
+}
+
+// maxStep returns the largest step of the analysed samples i in [lo, hi).
+func (d *OnsetDetector) maxStep(lo, hi int64) float64 {
+	var m float64
+	for i := max(0, lo); i < hi; i++ {
+		m = max(m, d.step(i))
+	}
+	return m
+}
+
+// step is |y_i − y_{i−1}| of the analysed samples (y_{−1} = 0: silence before the
+// stream, which the ring holds until it first wraps).
+func (d *OnsetDetector) step(i int64) float64 {
+	return math.Abs(float64(d.ring[i&ringMask] - d.ring[(i-1)&ringMask]))
 }
 
 // AttackSkip returns the number of samples (50 ms) to skip after an onset before the

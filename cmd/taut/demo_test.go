@@ -195,9 +195,10 @@ func closeText(got, want string) bool {
 	return true
 }
 
-// checkDemoFlags: every injected fault is flagged on its string with its flag, and
-// no other string carries a flag.
-func checkDemoFlags(t *testing.T, sumPath string) {
+// shortNightPlan is the plan of the night TestDemo_ShortNight plays (harp, seed 1,
+// shortNight's 5 hours): what was injected and every strike's true pitch.
+func shortNightPlan(t *testing.T) *sim.Night {
+	t.Helper()
 	cfg, err := instrument.Parse(configs.FS, "harp36.toml")
 	if err != nil {
 		t.Fatal(err)
@@ -206,6 +207,13 @@ func checkDemoFlags(t *testing.T, sumPath string) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	return night
+}
+
+// checkDemoFlags: every injected fault is flagged on its string with its flag, and
+// no other string carries a flag.
+func checkDemoFlags(t *testing.T, sumPath string) {
+	night := shortNightPlan(t)
 	want := faultFlags(night)
 	var sum struct {
 		Flagged []string `json:"flagged"`
@@ -250,14 +258,7 @@ func checkDemoFlags(t *testing.T, sumPath string) {
 // f0 instead would read flat by 1200·log2√(1+B): about 1.4 cents on the harp's top
 // string.
 func checkDemoCents(t *testing.T, csvPath string) {
-	cfg, err := instrument.Parse(configs.FS, "harp36.toml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	night, err := sim.NewNight(cfg, sim.Options{Seed: 1, Hours: 5})
-	if err != nil {
-		t.Fatal(err)
-	}
+	night := shortNightPlan(t)
 	truth := map[string][]float64{}
 	for _, r := range night.Rounds {
 		for _, s := range r.Strikes {

@@ -297,8 +297,8 @@ func (s *String) judgePitch(l Limits) {
 	case fitOff:
 		s.warn(WarnOffTarget, fmt.Sprintf("%+.1f cents from target by the fit (tolerance ±%.0f)", an.CentsNow, l.ToleranceCents))
 	case listenerOff:
-		s.warn(WarnOffTarget, fmt.Sprintf("the listener calls it off-target: its last reading is %+.1f cents from target "+
-			"(tolerance ±%.0f), the fit puts it at %+.1f now", s.LastCents, l.ToleranceCents, an.CentsNow))
+		s.warn(WarnOffTarget, fmt.Sprintf("the listener calls it off-target: its last reading is %+.2f cents from target "+
+			"(tolerance ±%s), the fit puts it at %+.2f now", s.LastCents, trimNum(l.ToleranceCents), an.CentsNow))
 	}
 	listenerSettling := s.State == monitor.Settling
 	switch {
@@ -380,15 +380,15 @@ func (s *String) reconcilePullUp(l Limits) {
 	case c > l.ToleranceCents:
 		g.RaiseCents = -c
 	default:
-		s.PullUpNote = fmt.Sprintf("none: the listener called it off-target, but its last reading (%+.1f cents) and "+
-			"the fit (%+.1f) are within this report's ±%.0f; the listener may have judged by another tolerance",
-			c, fit, l.ToleranceCents)
+		s.PullUpNote = fmt.Sprintf("none: the listener called it off-target, but its last reading (%+.2f cents) and "+
+			"the fit (%+.2f) are within this report's ±%s; the listener may have judged by another tolerance",
+			c, fit, trimNum(l.ToleranceCents))
 		s.Reasons = append(s.Reasons, "next pull-up "+s.PullUpNote)
 		return
 	}
 	g.AimCents = c + g.RaiseCents
-	s.PullUpNote = fmt.Sprintf("from the listener's last reading (%+.1f cents, outside ±%.0f); the fit puts the string "+
-		"at %+.1f now, inside", c, l.ToleranceCents, fit)
+	s.PullUpNote = fmt.Sprintf("from the listener's last reading (%+.2f cents, outside ±%s); the fit puts the string "+
+		"at %+.2f now, inside", c, trimNum(l.ToleranceCents), fit)
 	g.Basis = s.PullUpNote + "; " + g.Basis
 	s.Reasons = append(s.Reasons, "next pull-up "+s.PullUpNote)
 }
