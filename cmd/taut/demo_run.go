@@ -127,14 +127,22 @@ func demoSinks(sinkCtx context.Context, night *sim.Night, df *demoFlags, res *ni
 		stopLamps()
 		wg.Wait()
 		_ = board.Halt()
-		if !keep {
+		// stopAndWait ends the sinks and waits for the status page's shutdown, so
+		// nothing serves or logs after the demo returns.
+		stopAndWait := func() {
 			stop()
+			if srv != nil {
+				_ = srv.Wait()
+			}
+		}
+		if !keep {
+			stopAndWait()
 			return
 		}
 		res.serve = func(ctx context.Context, stdout io.Writer) error {
 			fmt.Fprintf(stdout, "\nstatus page: http://%s/ — press Ctrl-C to stop\n", df.serve)
 			<-ctx.Done()
-			stop()
+			stopAndWait()
 			return nil
 		}
 	}
