@@ -8,41 +8,41 @@ import (
 // Onset detection: spectral flux on a short-time spectrum, confirmed by the time course
 // of the level (see the package doc, "Segmentation").
 const (
-	onsetDecRateHz  = 11000  // the input is averaged down to the lowest rate ≥ this (×1 below)
-	onsetFrameS     = 0.0427 // spectral frame, seconds (2048 samples at 48 kHz) …
-	onsetMinFrame   = 64     // … rounded to a power of two, at least this many samples
-	onsetHops       = 2      // hops per frame
-	onsetSubs       = 32     // sub-blocks per frame: the time grid of the onset's position
-	onsetLag        = 1      // the flux compares a frame with the loudest of those onsetLag …
-	onsetMemory     = 5      // … to onsetMemory hops before (107 ms at 48 kHz), bin by bin
-	onsetFloorDB    = -90.0  // bin level (dB re a full-scale sine) below which nothing counts
-	onsetMedianLen  = 32     // frames of flux history behind the adaptive threshold
-	onsetFluxMin    = 60.0   // flux (dB summed over bins) that always counts as a rise …
-	onsetFluxRel    = 2.0    // … above this multiple of the recent median flux
-	onsetRiseMin    = 1.5    // the mean power after the onset over that before it, at least (1.8 dB) …
-	onsetBeforeS    = 0.04   // … over this long before (a period at 25 Hz, so a low note's …
-	onsetAfterS     = 0.04   // … own waveform is no rise) and this long after
-	onsetSharp      = 1      // the onset is placed where the level over this many sub-blocks jumps …
-	onsetPlaceS     = 0.013  // … in the frame or this long after it …
-	onsetJumpMin    = 1.2    // … by this power ratio at least (0.8 dB) …
-	onsetJumpSure   = 2.0    // … and from this on at its leading edge, where it first reaches …
-	onsetJumpEdge   = 0.75    // … this share, in dB, of the largest jump; below, at the largest
-	onsetLevelMin   = 1e-6   // mean square at the onset below which nothing starts (−60 dBFS)
-	onsetHPHz       = 80.0   // corner of the high-pass that removes offsets from the level
-	onsetAttackS    = 0.008  // the level after the attack, from this long after the onset, must rise too …
-	onsetHoldRise   = 1.25   // … by this power ratio (1 dB) over the level before the onset …
-	onsetSustainDB  = 16.0   // … and stay within this many dB of the attack's peak (a click or step dies)
-	onsetRefractory = 0.1    // no second onset within this time, seconds
-	attackSkipS     = 0.05   // attack transient skipped before analysis, seconds
-	subRing         = 256    // sub-blocks of level history kept (≥ the reach of a decision)
-	ringLen         = 4 * maxFrame
+	onsetDecRateHz  = 11000                          // the input is averaged down to the lowest rate ≥ this (×1 below)
+	onsetFrameS     = 0.0427                         // spectral frame, seconds (2048 samples at 48 kHz) …
+	onsetMinFrame   = 64                             // … rounded to a power of two, at least this many samples
+	onsetHops       = 2                              // hops per frame
+	onsetSubs       = 32                             // sub-blocks per frame: the time grid of the onset's position
+	onsetLag        = 1                              // the flux compares a frame with the loudest of those onsetLag …
+	onsetMemory     = 5                              // … to onsetMemory hops before (107 ms at 48 kHz), bin by bin
+	onsetFloorDB    = -90.0                          // bin level (dB re a full-scale sine) below which nothing counts
+	onsetMedianLen  = 32                             // frames of flux history behind the adaptive threshold
+	onsetFluxMin    = 60.0                           // flux (dB summed over bins) that always counts as a rise …
+	onsetFluxRel    = 2.0                            // … above this multiple of the recent median flux
+	onsetRiseMin    = 1.5                            // the mean power after the onset over that before it, at least (1.8 dB) …
+	onsetBeforeS    = 0.04                           // … over this long before (a period at 25 Hz, so a low note's …
+	onsetAfterS     = 0.04                           // … own waveform is no rise) and this long after
+	onsetSharp      = 1                              // the onset is placed where the level over this many sub-blocks jumps …
+	onsetPlaceS     = 0.013                          // … in the frame or this long after it …
+	onsetJumpMin    = 1.2                            // … by this power ratio at least (0.8 dB) …
+	onsetJumpSure   = 2.0                            // … and from this on at its leading edge, where it first reaches …
+	onsetJumpEdge   = 0.75                           // … this share, in dB, of the largest jump; below, at the largest
+	onsetLevelMin   = 1e-6                           // mean square at the onset below which nothing starts (−60 dBFS)
+	onsetHPHz       = 80.0                           // corner of the high-pass that removes offsets from the level
+	onsetAttackS    = 0.008                          // the level after the attack, from this long after the onset, must rise too …
+	onsetHoldRise   = 1.25                           // … by this power ratio (1 dB) over the level before the onset …
+	onsetSustainDB  = 16.0                           // … and stay within this many dB of the attack's peak (a click or step dies)
+	onsetRefractory = 0.1                            // no second onset within this time, seconds
+	attackSkipS     = 0.05                           // attack transient skipped before analysis, seconds
+	subRing         = 256                            // sub-blocks of level history kept (more than a decision reaches back) …
+	ringLen         = subRing * maxFrame / onsetSubs // … and analysed samples
 	ringMask        = ringLen - 1
 )
 
 // OnsetDetector finds note onsets in a stream of samples: a note starts where the
 // short-time spectrum rises (spectral flux), also when an earlier note still rings, and
 // not where a sound stops. It does not allocate after NewOnsetDetector; its memory is
-// fixed (about 75 kB). See the package doc for the method and its limits.
+// fixed (about 90 kB). See the package doc for the method and its limits.
 type OnsetDetector struct {
 	// Set once.
 	dec         int     // input samples per analysed sample
@@ -70,6 +70,7 @@ type OnsetDetector struct {
 	ring          [ringLen]float32 // the latest analysed samples
 	prevY, hpY    float64
 	eHP, eDiff    float64 // sums of squares in the current sub-block: high-passed signal, difference
+	subFill       int     // analysed samples in the current sub-block
 	subs          int64   // completed sub-blocks
 	subHP, subDif [subRing]float64
 
@@ -188,14 +189,14 @@ func (d *OnsetDetector) sample(y float64) {
 	d.eHP += d.hpY * d.hpY
 	d.eDiff += diff * diff
 	d.nDec++
-	if d.nDec%int64(d.sub) != 0 {
+	if d.subFill++; d.subFill < d.sub {
 		return
 	}
 	i := d.subs % subRing
 	d.subHP[i], d.subDif[i] = d.eHP/float64(d.sub), d.eDiff/float64(d.sub)
-	d.eHP, d.eDiff = 0, 0
+	d.eHP, d.eDiff, d.subFill = 0, 0, 0
 	d.subs++
-	if d.nDec%int64(d.hop) == 0 {
+	if d.subs%(onsetSubs/onsetHops) == 0 {
 		d.spectralFrame()
 	}
 	if d.pending {

@@ -268,3 +268,35 @@ func TestOnsetDetector_DecayingNotes(t *testing.T) {
 		}
 	}
 }
+
+func TestOnsetDetector_PushDoesNotAllocate(t *testing.T) {
+	x, _, _ := ringingPair(harpTone("C5", 1, true), harpTone("A3", 2, true), 5, false, 1)
+	d := NewOnsetDetector(rate)
+	i := 0
+	allocs := testing.AllocsPerRun(200, func() {
+		d.Push(x[i : i+480])
+		i = (i + 480) % (len(x) - 480)
+	})
+	if allocs != 0 {
+		t.Errorf("Push allocates %v times per call, want 0", allocs)
+	}
+}
+
+// TestOnsetDetector_Rates: the detector adapts its frame to the rate (a 1024-sample
+// frame at 20 kHz, 512 at 44.1 to 192 kHz, 256 at 8 kHz) and finds a note struck over a
+// ringing one at each.
+func TestOnsetDetector_Rates(t *testing.T) {
+	for _, r := range []float64{8000, 20000, 44100, 96000, 192000} {
+		t.Run(fmt.Sprintf("%gHz", r), func(t *testing.T) {
+			x := make([]float32, int(2*r))
+			at0, at1 := int(0.2*r), int(1.1*r)
+			harpTone("E4", 1, true).Add(x[at0:], r)
+			harpTone("A3", 2, true).Add(x[at1:], r)
+			segs := Segments(nil, x, r, 25)
+			if len(segs) != 2 || segs[0].Onset < at0 || segs[0].Onset > at0+int(0.01*r) ||
+				segs[1].Onset < at1 || segs[1].Onset > at1+int(0.01*r) {
+				t.Errorf("onsets %v, want %d and %d (to 10 ms after)", onsetsOf(segs), at0, at1)
+			}
+		})
+	}
+}

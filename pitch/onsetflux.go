@@ -44,8 +44,9 @@ func (d *OnsetDetector) spectralFrame() {
 		d.pending, d.spanLo, d.spanHi = true, lo, d.subs
 	case !d.queued: // a rise while an earlier one waits (a stop just before a strike)
 		d.queued, d.nextLo, d.nextHi = true, lo, d.subs
-	default:
+	default: // (the queued span never outgrows two frames, so the history holds it)
 		d.nextHi = d.subs
+		d.nextLo = max(d.nextLo, d.nextHi-2*onsetSubs)
 	}
 }
 

@@ -17,15 +17,18 @@ func (d *OnsetDetector) decide() {
 // settle decides the pending span.
 func (d *OnsetDetector) settle() {
 	lo := max(d.spanLo, d.lastSub+int64(d.refractory))
-	j, ok := d.rises(lo, d.spanHi)
+	top, ok := d.rises(lo, d.spanHi)
 	if !ok {
 		return
 	}
-	// The onset lies at most onsetBeforeS before the largest rise (which can lead it
-	// where a low note's waveform makes the level before uneven).
-	j, ok = d.place(max(lo, j-15), d.spanHi+int64(d.placeSubs))
+	// The onset lies at most half onsetBeforeS before the largest rise (which can lead
+	// it where a low note's waveform makes the level before uneven).
+	j, ok := d.place(max(lo, top-int64(d.before/2)), d.spanHi+int64(d.placeSubs))
+	// The level after the attack is compared with that before the onset, or before
+	// the largest rise when the onset was placed after it (its new sound is not
+	// "before").
 	if !ok || d.mean(&d.subHP, j, j+int64(d.after)) < onsetLevelMin ||
-		d.rise(j+int64(d.attack), j) < onsetHoldRise || !d.sustained(j) {
+		d.rise(j+int64(d.attack), min(j, top)) < onsetHoldRise || !d.sustained(j) {
 		return
 	}
 	d.last, d.lastSub, d.found = d.onsetSample(j), j, true
@@ -44,9 +47,9 @@ func (d *OnsetDetector) rises(lo, hi int64) (int64, bool) {
 }
 
 // rise is the mean power over the onsetAfterS from sub-block from over the mean power
-// over the onsetBeforeS before sub-block j, in the high-passed signal or in its first
-// difference (which stresses the broadband noise of a strike or pluck), whichever
-// rises more.
+// over the onsetBeforeS before sub-block j (from ≥ j), in the high-passed signal or in
+// its first difference (which stresses the broadband noise of a strike or pluck),
+// whichever rises more.
 func (d *OnsetDetector) rise(from, j int64) float64 {
 	to, b := from+int64(d.after), j-int64(d.before)
 	return max(ratio(d.mean(&d.subHP, from, to), d.mean(&d.subHP, b, j)),
@@ -54,7 +57,7 @@ func (d *OnsetDetector) rise(from, j int64) float64 {
 }
 
 // place returns the first sub-block in [lo, hi) whose level exceeds the loudest
-// sub-block of the onsetBeforeS before it by at least half (in dB) the largest such
+// sub-block of the onsetBeforeS before it by onsetJumpEdge (in dB) of the largest such
 // jump in the range, or by the largest itself when that is below onsetJumpSure: the
 // leading edge of the rise. A ringing note's own waveform repeats within
 // onsetBeforeS and decays, so it makes no jump (a few tenths of a dB where partials

@@ -9,7 +9,7 @@ const (
 	decayDB     = 35.0  // a note's useful sustain ends this far below its attack peak
 	peakS       = 0.2   // the attack peak is looked for this long after the onset
 	levelBlockS = 0.005 // blocks in which the decay is followed
-	guardS      = 0.01  // a window ends this long before the next onset (placed up to ~8 ms late)
+	guardS      = 0.01  // a window ends this long before the next onset (which may be placed late)
 	minRateHz   = 1000
 	maxMinHzHz  = 20000
 )
@@ -19,12 +19,14 @@ const (
 type Segment struct{ Onset, Start, End int }
 
 // Segments finds the notes in a recording x sampled at rateHz and appends one Segment
-// per note to dst. Onsets come from an OnsetDetector. Each window starts AttackSkip
-// samples after its onset and ends at the first of: WindowLen samples later (enough for
-// minHz, the lowest pitch expected; zero means 25 Hz), the next onset, the point where
-// the level has fallen 35 dB below the note's attack peak, or the end of x. A window may
-// be too short to analyse (Analyze then reports ErrTooShort). Segments panics if rateHz
-// is not positive (a caller bug).
+// per note to dst. Onsets come from an OnsetDetector, the same as a live stream's, so
+// a note that starts in the last 100 ms or so of x, too short to measure, is not
+// reported. Each window starts AttackSkip samples after its onset and ends at the
+// first of: WindowLen samples later (enough for minHz, the lowest pitch expected; zero
+// means 25 Hz), 10 ms before the next onset, the point where the level has fallen 35
+// dB below the note's attack peak, or the end of x. A window may be too short to
+// analyse (Analyze then reports ErrTooShort). Segments panics if rateHz is not
+// positive (a caller bug).
 func Segments(dst []Segment, x []float32, rateHz, minHz float64) []Segment {
 	var d OnsetDetector
 	d.init(rateHz)
