@@ -75,6 +75,15 @@ func TestMonitor_badInput(t *testing.T) {
 	for i := range clipped {
 		clipped[i] = float32(math.Max(-1, math.Min(1, 8*float64(clipped[i]))))
 	}
+	// A clean sine whose peaks sit exactly at full scale is not clipping (2.8 % of its
+	// samples are at or above 0.999, which a plain level count once took for clipping):
+	// it must be read.
+	fullScale := seconds(1.5)
+	for _, s := range cfg.Instrument.Strings {
+		if s.ID == "D4" {
+			synth.Sine(fullScale, s.TargetHz, testRate, 1, 0)
+		}
+	}
 	offset := tone(t, cfg, "D4", 0)
 	for i := range offset {
 		offset[i] += 0.3
@@ -89,6 +98,7 @@ func TestMonitor_badInput(t *testing.T) {
 		{"Silence", seconds(10), []string{"B3"}, "", false},
 		{"NoiseOnly", noise, []string{"B3"}, "", false},
 		{"Clipping", clipped, []string{"B3"}, "clipped", true},
+		{"FullScaleClean", fullScale, []string{"D4", "B3"}, "", false},
 		{"DCOffset", offset, []string{"D4", "B3"}, "", false},
 	}
 	for _, tc := range tests {

@@ -14,13 +14,14 @@ const dcCutoffHz = 5.0
 
 // lane listens to one input channel (or the mix of all) for the strings heard on it.
 type lane struct {
-	pick  int   // capture.Channel pick: 0 = mix of all channels, else the 1-based channel
-	cands []int // strings heard on this lane, in scale order
-	det   *pitch.OnsetDetector
-	dc    dcBlocker
-	mono  []float32 // this lane's samples of the current block
-	fed   int64     // samples pushed to det before the current block
-	clips []int32   // clips[i]: clipped samples among the block's first i (before the DC blocker)
+	pick     int   // capture.Channel pick: 0 = mix of all channels, else the 1-based channel
+	cands    []int // strings heard on this lane, in scale order
+	det      *pitch.OnsetDetector
+	dc       dcBlocker
+	mono     []float32 // this lane's samples of the current block
+	fed      int64     // samples pushed to det before the current block
+	clips    []int32   // clips[i]: clipped samples among the block's first i (before the DC blocker)
+	clipMask []bool    // per-sample clipping marks of the current block (scratch)
 
 	// The note being collected.
 	open      bool
@@ -96,7 +97,7 @@ const analyserMinHz = 20
 // push feeds one block (interleaved) starting at sample frame frame0 to the lane.
 func (m *Monitor) push(l *lane, interleaved []float32, frame0 int64) {
 	l.mono = capture.Channel(l.mono, interleaved, m.format.Channels, l.pick)
-	l.clips = countClipped(l.clips, l.mono)
+	l.clips, l.clipMask = countClipped(l.clips, l.clipMask, l.mono, float64(m.format.SampleRate))
 	l.dc.filter(l.mono)
 	x := l.mono
 	on := l.det.Push(x)
@@ -173,24 +174,22 @@ func (d *dcBlocker) filter(x []float32) {
 	}
 }
 
-// clipLevel is the magnitude at which a sample counts as clipped (full scale, less
-// the rounding of 16-bit and 24-bit converters); a window with more than clipShare of
-// its samples there is not analysed (the DC blocker would hide the flat tops from the
-// analyser's own check).
-const (
-	clipLevel = 0.999
-	clipShare = 0.01
-)
+// clipShare is the share of a window's samples on clipped flat tops (pitch.MarkClipped,
+// judged on the raw samples: the DC blocker would turn flat tops into slopes and hide
+// them from the analyser's own check) above which the window is not analysed.
+const clipShare = 0.01
 
-// countClipped returns the running count of clipped samples of x, reusing dst.
-func countClipped(dst []int32, x []float32) []int32 {
+// countClipped returns the running count of clipped samples of x, reusing dst and
+// mask.
+func countClipped(dst []int32, mask []bool, x []float32, rateHz float64) ([]int32, []bool) {
+	mask = pitch.MarkClipped(mask, x, rateHz, analyserMinHz)
 	dst = append(dst[:0], 0)
 	n := int32(0)
-	for _, v := range x {
-		if v >= clipLevel || v <= -clipLevel {
+	for _, c := range mask {
+		if c {
 			n++
 		}
 		dst = append(dst, n)
 	}
-	return dst
+	return dst, mask
 }

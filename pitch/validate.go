@@ -3,6 +3,7 @@ package pitch
 import (
 	"fmt"
 	"math"
+	"slices"
 )
 
 // Clipping is recognised by its flat tops (see the package doc, "Clipping").
@@ -47,19 +48,49 @@ func (a *Analyzer) load(x []float32) error {
 	return nil
 }
 
-// clippedSamples counts the samples of x in flat runs at full scale that are clipping:
-// runs of clipMinRun or more samples at or beyond ±clipNear, each within clipFlat of
-// the run's first, that are longer than long samples or are entered and left by a step
-// of more than clipCorner over two samples (a corner, where a smooth waveform
-// flattens gradually).
+// MarkClipped sets dst[i] for every sample x[i] that lies on a clipped flat top, by the
+// rule of the package doc ("Clipping"), for audio at rateHz whose lowest pitch of
+// interest is minHz. It reuses dst and returns it (len(x)). Callers that filter the
+// signal before analysis (a DC blocker turns flat tops into slopes) check the raw
+// samples with it.
+func MarkClipped(dst []bool, x []float32, rateHz, minHz float64) []bool {
+	dst = slices.Grow(dst[:0], len(x))[:len(x)]
+	clear(dst)
+	clipRuns(x, clipLongRun(rateHz, minHz), func(s, e int) {
+		for i := s; i < e; i++ {
+			dst[i] = true
+		}
+	})
+	return dst
+}
+
+// clippedSamples counts the samples of x in flat runs at full scale that are clipping.
 func clippedSamples(x []float64, long int) int {
+	return clipRuns(x, long, nil)
+}
+
+// clipRuns finds the flat runs at full scale that are clipping: runs of clipMinRun or
+// more samples at or beyond ±clipNear, each within clipFlat of the run's first, that
+// are longer than long samples or are entered and left by a step of more than
+// clipCorner over two samples (a corner, where a smooth waveform flattens gradually).
+// It calls mark (when not nil) with each such run [s, e) and returns their total length.
+func clipRuns[T float32 | float64](x []T, long int, mark func(s, e int)) int {
 	clipped, start := 0, -1
-	for i, f := range x {
-		if start >= 0 && math.Abs(f-x[start]) <= clipFlat {
+	flush := func(e int) {
+		if n := clipRun(x, start, e, long); n > 0 {
+			clipped += n
+			if mark != nil {
+				mark(start, e)
+			}
+		}
+	}
+	for i, v := range x {
+		f := float64(v)
+		if start >= 0 && math.Abs(f-float64(x[start])) <= clipFlat {
 			continue // the run goes on (it is near full scale, as its first sample is)
 		}
 		if start >= 0 {
-			clipped += clipRun(x, start, i, long)
+			flush(i)
 		}
 		start = -1
 		if f >= clipNear || f <= -clipNear {
@@ -67,13 +98,13 @@ func clippedSamples(x []float64, long int) int {
 		}
 	}
 	if start >= 0 {
-		clipped += clipRun(x, start, len(x), long)
+		flush(len(x))
 	}
 	return clipped
 }
 
 // clipRun returns the length of the flat run x[s:e] if it counts as clipping, else 0.
-func clipRun(x []float64, s, e, long int) int {
+func clipRun[T float32 | float64](x []T, s, e, long int) int {
 	n := e - s
 	if n < clipMinRun {
 		return 0
@@ -84,9 +115,9 @@ func clipRun(x []float64, s, e, long int) int {
 	// The steps are taken over two samples: the one next to the run may lie just off
 	// the rail by chance, while a smooth peak flat for three samples within clipFlat
 	// falls by at most 8·clipFlat over the two samples beyond.
-	sign := math.Copysign(1, x[s])
-	entered := s == 0 || sign*(x[s]-x[max(0, s-2)]) > clipCorner
-	left := e == len(x) || sign*(x[e-1]-x[min(len(x)-1, e+1)]) > clipCorner
+	sign := math.Copysign(1, float64(x[s]))
+	entered := s == 0 || sign*float64(x[s]-x[max(0, s-2)]) > clipCorner
+	left := e == len(x) || sign*float64(x[e-1]-x[min(len(x)-1, e+1)]) > clipCorner
 	if entered && left && (s > 0 || e < len(x)) {
 		return n
 	}
