@@ -125,3 +125,38 @@ func TestClipLongRun(t *testing.T) {
 		t.Errorf("clipLongRun(48000, 25) = %d, want 14", got)
 	}
 }
+
+func TestMarkClipped(t *testing.T) {
+	const rate = 48000.0
+	clean := make([]float32, 48000)
+	synth.Sine(clean, 440, rate, 1, 0)
+	clipped := make([]float32, 48000)
+	synth.Sine(clipped, 440, rate, 3, 0)
+	for i, v := range clipped {
+		clipped[i] = max(-1, min(1, v))
+	}
+	tests := []struct {
+		name      string
+		x         []float32
+		wantShare [2]float64 // share of samples marked: min, max
+	}{
+		{"FullScaleSine", clean, [2]float64{0, 0}},
+		{"ClampedSine", clipped, [2]float64{0.5, 0.9}},
+	}
+	var mask []bool
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			mask = MarkClipped(mask, tc.x, rate, 25)
+			n := 0
+			for _, c := range mask {
+				if c {
+					n++
+				}
+			}
+			share := float64(n) / float64(len(tc.x))
+			if len(mask) != len(tc.x) || share < tc.wantShare[0] || share > tc.wantShare[1] {
+				t.Errorf("marked %.3f of %d samples (mask len %d), want %.2f..%.2f", share, len(tc.x), len(mask), tc.wantShare[0], tc.wantShare[1])
+			}
+		})
+	}
+}
