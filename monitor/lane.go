@@ -113,7 +113,7 @@ func (m *Monitor) push(l *lane, interleaved []float32, frame0 int64) {
 	m.fill(l, x[:end], 0)
 	if on >= 0 {
 		if l.open {
-			m.finishEarly(l)
+			m.finishEarly(l, int(early))
 		}
 		m.begin(l, frame0+int64(on)-early)
 		l.skip = max(l.skip-int(early), 0)
@@ -141,8 +141,11 @@ func (m *Monitor) fill(l *lane, x []float32, off int) {
 
 // finishEarly ends a window cut short by a new onset or an idle gap: analysed if at
 // least half full (the analyser says so if that is too short), else dropped.
-func (m *Monitor) finishEarly(l *lane) {
+func (m *Monitor) finishEarly(l *lane, early int) {
 	l.open = false
+	// The onset detector confirms an onset some tens of milliseconds after it; those
+	// samples of the new note went into this window and must not be analysed with it.
+	l.win = l.win[:max(0, len(l.win)-early)]
 	if len(l.win) >= l.need/2 && len(l.win) > 0 {
 		m.analyze(l)
 	}

@@ -72,7 +72,7 @@ func (m *Monitor) process(b *block) {
 	case b.reason == capture.GapIdle:
 		for _, l := range m.lanes {
 			if l.open {
-				m.finishEarly(l)
+				m.finishEarly(l, 0)
 			}
 		}
 		m.frame += b.gap
@@ -138,7 +138,7 @@ func (m *Monitor) emitStart() {
 func (m *Monitor) finish(runErr error) {
 	for _, l := range m.lanes {
 		if l.open {
-			m.finishEarly(l)
+			m.finishEarly(l, 0)
 		}
 	}
 	for {
