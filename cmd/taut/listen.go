@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strconv"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -71,7 +72,7 @@ func parseListenFlags(args []string, stderr io.Writer) (*listenFlags, error) {
 	fs.IntVar(&lf.channels, "channels", 0, "stdin PCM channels (default from the config)")
 	fs.StringVar(&lf.device, "device", "", "PortAudio input device `name` substring (implies --input device)")
 	fs.StringVar(&lf.journal, "journal", "", "journal `dir` (default [journal] dir in the config)")
-	fs.Float64Var(&lf.speed, "speed", -1, "WAV replay speed: 0 = as fast as possible, 1 = real time (default from the config)")
+	fs.Var((*unsetFloat)(&lf.speed), "speed", "WAV replay `speed`: 0 = as fast as possible, 1 = real time (default from the config)")
 	fs.StringVar(&lf.lamps, "lamps", "on", "on: drive the configured lamps; off: only log them")
 	fs.StringVar(&lf.http, "http", "", "status page `address`, e.g. 127.0.0.1:9440 (default [http] listen in the config)")
 	fs.StringVar(&lf.clock, "clock", "", "entry times: wall (wall clock, for live input) or samples "+
@@ -283,4 +284,24 @@ func firstNonEmpty(s ...string) string {
 		}
 	}
 	return ""
+}
+
+// unsetFloat is a float flag whose negative value means "not given" (the config
+// decides); it prints no default in the usage text.
+type unsetFloat float64
+
+func (f *unsetFloat) String() string {
+	if f == nil || *f <= 0 { // unset (or the zero value the flag package compares with)
+		return ""
+	}
+	return strconv.FormatFloat(float64(*f), 'g', -1, 64)
+}
+
+func (f *unsetFloat) Set(s string) error {
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil || v < 0 {
+		return fmt.Errorf("want a speed of 0 or more, got %q", s)
+	}
+	*f = unsetFloat(v)
+	return nil
 }
